@@ -1,0 +1,13 @@
+//go:build tools
+
+package tools
+
+import (
+	_ "github.com/go-chi/chi/v5"
+	_ "github.com/a-h/templ"
+	_ "gonum.org/v1/gonum/mat"
+	_ "gonum.org/v1/plot"
+	_ "modernc.org/sqlite"
+	_ "github.com/chromedp/chromedp"
+	_ "golang.org/x/sync/errgroup"
+)

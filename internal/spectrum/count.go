@@ -1,0 +1,318 @@
+package spectrum
+
+import (
+	"context"
+	"math"
+	"runtime"
+	"slices"
+	"sort"
+
+	"golang.org/x/sync/errgroup"
+
+	"ringbox/internal/phys"
+)
+
+// openPart is the continuum count of the open axes: the number of states (per
+// spin and valley) with open-axis energy ≤ x is pref·x^(dim/2), the volume of
+// the ellipsoid in lattice units, V_d·Π(kᵢLᵢ/2π): L·k/π, A·k²/4π, V·k³/6π².
+type openPart struct {
+	dim  int
+	pref float64
+}
+
+func newOpenPart(axes []Axis, mass []float64) openPart {
+	p := openPart{pref: 1}
+	for i, a := range axes {
+		if a.BC != Open {
+			continue
+		}
+		p.dim++
+		// k(x) = √(x·m/C): the factor per axis is L/(2π)·√(m/C).
+		p.pref *= a.LengthM / (2 * math.Pi) * math.Sqrt(mass[i]/phys.HbarSqOver2M0EVm2)
+	}
+	p.pref *= unitBall(p.dim)
+	return p
+}
+
+// unitBall returns the volume of the unit ball in d dimensions: 1, 2, π, 4π/3.
+func unitBall(d int) float64 {
+	return math.Pow(math.Pi, float64(d)/2) / math.Gamma(float64(d)/2+1)
+}
+
+// at returns the count for open-axis energy x.
+func (p openPart) at(x float64) float64 {
+	switch {
+	case p.dim == 0:
+		if x >= 0 {
+			return 1
+		}
+		return 0
+	case x <= 0:
+		return 0
+	case p.dim == 1:
+		return p.pref * math.Sqrt(x)
+	case p.dim == 2:
+		return p.pref * x
+	}
+	return p.pref * x * math.Sqrt(x)
+}
+
+// slope returns d/dx of at (per eV of γ). The 1D van Hove singularity at
+// x = 0 is left out (its right limit is infinite).
+func (p openPart) slope(x float64) float64 {
+	switch {
+	case p.dim == 0 || x < 0:
+		return 0
+	case p.dim == 2:
+		return p.pref
+	case x == 0:
+		return 0
+	case p.dim == 1:
+		return p.pref / (2 * math.Sqrt(x))
+	}
+	return 1.5 * p.pref * math.Sqrt(x)
+}
+
+// class is a sorted list of 2D column energies that share one weight.
+type class struct {
+	w float64
+	e []float64
+}
+
+// valleyCounter counts one valley's states.
+type valleyCounter struct {
+	weight float64  // g_s·g_v
+	conf   []ladder // confined axes; conf[0] is the outer loop
+	open   openPart
+	// For three confined axes: the energies ε_a + ε_b of the inner two axes,
+	// sorted once, by weight class, so that N₃(γ) = Σₙ w_n N₂(γ − εₙ) costs
+	// one binary search per outer level.
+	classes []class
+}
+
+// Counter counts the states of one conductor at energies up to the cap it
+// was built for. It is safe for concurrent use.
+type Counter struct {
+	c        Conductor
+	gammaMax float64
+	valleys  []valleyCounter
+}
+
+// NewCounter prepares the counts of c for energies up to emaxEV. The work it
+// does is about the number of level columns below emaxEV; see Work.
+func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, error) {
+	if err := c.Check(); err != nil {
+		panic(err.Error())
+	}
+	gmax := Gamma(math.Max(emaxEV, 0), c.AlphaPerEV) * (1 + 4*tieRel)
+	k := &Counter{c: c, gammaMax: gmax}
+	for _, v := range c.Valleys {
+		vc := valleyCounter{weight: float64(c.SpinDegeneracy * v.Degeneracy)}
+		mass := v.MassM0[:len(c.Axes)]
+		vc.open = newOpenPart(c.Axes, mass)
+		for i, a := range c.Axes {
+			if a.BC != Open {
+				vc.conf = append(vc.conf, ladder{q: quantumEV(a, mass[i]), ring: a.BC == Ring})
+			}
+		}
+		switch len(vc.conf) {
+		case 2:
+			// The outer loop runs over the axis with fewer levels.
+			if vc.conf[0].levels(gmax) > vc.conf[1].levels(gmax) {
+				vc.conf[0], vc.conf[1] = vc.conf[1], vc.conf[0]
+			}
+		case 3:
+			// The outer loop runs over the axis with the most levels; the
+			// other two make the sorted column list.
+			slices.SortFunc(vc.conf, func(a, b ladder) int { return b.levels(gmax) - a.levels(gmax) })
+			cl, err := columns(ctx, vc.conf[1], vc.conf[2], gmax-vc.conf[0].q*float64(vc.conf[0].first()))
+			if err != nil {
+				return nil, err
+			}
+			vc.classes = cl
+		}
+		k.valleys = append(k.valleys, vc)
+	}
+	return k, nil
+}
+
+// columns lists ε_a(n_a) + ε_b(n_b) ≤ gmax, grouped by weight and sorted.
+func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
+	byWeight := map[float64][]float64{}
+	na := a.top(gmax)
+	for i := a.first(); i <= na; i++ {
+		if i%256 == 0 && ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
+		ea := a.q * float64(i) * float64(i)
+		nb := b.top(gmax - ea)
+		for j := b.first(); j <= nb; j++ {
+			w := a.weight(i) * b.weight(j)
+			byWeight[w] = append(byWeight[w], ea+b.q*float64(j)*float64(j))
+		}
+	}
+	var out []class
+	for w, e := range byWeight {
+		slices.Sort(e)
+		out = append(out, class{w: w, e: e})
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].w < out[j].w })
+	return out, nil
+}
+
+// count returns this valley's states with γ_state ≤ g.
+func (v *valleyCounter) count(g0 float64) float64 {
+	if g0 < 0 {
+		return 0
+	}
+	// g decides which levels are in (ties count); the open axes integrate
+	// up to the exact g0.
+	g := g0 * (1 + tieRel)
+	var s float64
+	switch len(v.conf) {
+	case 0:
+		s = v.open.at(g0)
+	case 1:
+		l := v.conf[0]
+		switch v.open.dim {
+		case 0:
+			s = l.count(g)
+		case 2:
+			s = math.Max(v.open.pref*(l.count(g)*g0-l.q*l.sumSq(g)), 0)
+		default:
+			for n := l.first(); n <= l.top(g); n++ {
+				s += l.weight(n) * v.open.at(g0-l.q*float64(n)*float64(n))
+			}
+		}
+	case 2:
+		a, b := v.conf[0], v.conf[1]
+		for n := a.first(); n <= a.top(g); n++ {
+			r := g - a.q*float64(n)*float64(n)
+			if v.open.dim == 0 {
+				s += a.weight(n) * b.count(r)
+				continue
+			}
+			r0 := g0 - a.q*float64(n)*float64(n)
+			for m := b.first(); m <= b.top(r); m++ {
+				s += a.weight(n) * b.weight(m) * v.open.at(r0-b.q*float64(m)*float64(m))
+			}
+		}
+	case 3:
+		a := v.conf[0]
+		for n := a.first(); n <= a.top(g); n++ {
+			r := g - a.q*float64(n)*float64(n)
+			var s2 float64
+			for _, c := range v.classes {
+				s2 += c.w * float64(upper(c.e, r))
+			}
+			s += a.weight(n) * s2
+		}
+	}
+	return v.weight * s
+}
+
+// upper returns the number of elements of the sorted e that are ≤ x.
+func upper(e []float64, x float64) int {
+	i, j := 0, len(e)
+	for i < j {
+		h := int(uint(i+j) >> 1)
+		if e[h] <= x {
+			i = h + 1
+		} else {
+			j = h
+		}
+	}
+	return i
+}
+
+// slope returns this valley's dN/dγ where an axis is open (0 otherwise).
+func (v *valleyCounter) slope(g float64) float64 {
+	if v.open.dim == 0 || g < 0 {
+		return 0
+	}
+	var s float64
+	switch len(v.conf) {
+	case 0:
+		s = v.open.slope(g)
+	case 1:
+		l := v.conf[0]
+		if v.open.dim == 2 {
+			s = v.open.pref * l.count(g)
+			break
+		}
+		for n := l.first(); n <= l.top(g); n++ {
+			s += l.weight(n) * v.open.slope(g-l.q*float64(n)*float64(n))
+		}
+	case 2:
+		a, b := v.conf[0], v.conf[1]
+		for n := a.first(); n <= a.top(g); n++ {
+			r := g - a.q*float64(n)*float64(n)
+			for m := b.first(); m <= b.top(r); m++ {
+				s += a.weight(n) * b.weight(m) * v.open.slope(r-b.q*float64(m)*float64(m))
+			}
+		}
+	}
+	return v.weight * s
+}
+
+// States writes N(E), the number of states with energy ≤ E (spin and valleys
+// included), for each energy (eV) into out. Energies above the cap the
+// Counter was built for panic.
+func (k *Counter) States(ctx context.Context, energiesEV, out []float64) error {
+	return k.each(ctx, energiesEV, out, func(v *valleyCounter, g float64) float64 { return v.count(g) })
+}
+
+// DensityOfStates writes the analytic D(E) = dN/dE in states per eV where at
+// least one axis is open (2D steps, 1D inverse-square-root peaks). For a
+// fully confined conductor D is a sum of delta functions: use Broadened.
+func (k *Counter) DensityOfStates(ctx context.Context, energiesEV, out []float64) error {
+	err := k.each(ctx, energiesEV, out, func(v *valleyCounter, g float64) float64 { return v.slope(g) })
+	if err != nil {
+		return err
+	}
+	for i, e := range energiesEV {
+		out[i] *= dGammadE(e, k.c.AlphaPerEV)
+	}
+	return nil
+}
+
+// Conductor returns the conductor being counted.
+func (k *Counter) Conductor() Conductor { return k.c }
+
+func (k *Counter) each(ctx context.Context, energiesEV, out []float64, f func(*valleyCounter, float64) float64) error {
+	if len(out) != len(energiesEV) {
+		panic("spectrum: output length differs from input")
+	}
+	gam := make([]float64, len(energiesEV))
+	for i, e := range energiesEV {
+		gam[i] = Gamma(e, k.c.AlphaPerEV)
+		if gam[i] > k.gammaMax {
+			panic("spectrum: energy above the counter's cap")
+		}
+	}
+	work := func(lo, hi int) error {
+		for i := lo; i < hi; i++ {
+			if ctx.Err() != nil {
+				return ctx.Err()
+			}
+			var s float64
+			for vi := range k.valleys {
+				s += f(&k.valleys[vi], gam[i])
+			}
+			out[i] = s
+		}
+		return nil
+	}
+	workers := runtime.GOMAXPROCS(0)
+	if workers < 2 || len(gam) < 16 {
+		return work(0, len(gam))
+	}
+	var g errgroup.Group
+	// Interleaved chunks balance the cost, which grows with energy.
+	chunk := (len(gam) + 4*workers - 1) / (4 * workers)
+	for lo := 0; lo < len(gam); lo += chunk {
+		lo, hi := lo, min(lo+chunk, len(gam))
+		g.Go(func() error { return work(lo, hi) })
+	}
+	return g.Wait()
+}

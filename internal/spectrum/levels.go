@@ -1,0 +1,223 @@
+package spectrum
+
+import (
+	"context"
+	"math"
+	"sort"
+)
+
+// Level is one distinct energy of the confined axes (a subband edge where an
+// axis is open) with the number of states there.
+type Level struct {
+	EnergyEV   float64  `json:"energy_eV"`
+	Degeneracy int      `json:"degeneracy"` // spin, valleys and ±n included
+	Valleys    []string `json:"valleys,omitempty"`
+	// N holds the quantum numbers of one state at this energy, one per
+	// confined axis (ring axes give n ≥ 0; −n has the same energy).
+	N []int `json:"n"`
+}
+
+// Levels returns the lowest max distinct levels of the confined axes, with
+// their degeneracies. Energies that agree to 1e-9 relative are one level.
+// A conductor with no confined axis has none.
+func Levels(c Conductor, max int) []Level {
+	if err := c.Check(); err != nil {
+		panic(err.Error())
+	}
+	type state struct {
+		g      float64
+		w      int
+		valley string
+		n      []int
+	}
+	var all []state
+	for _, v := range c.Valleys {
+		var lad []ladder
+		for i, a := range c.Axes {
+			if a.BC != Open {
+				lad = append(lad, ladder{q: quantumEV(a, v.MassM0[i]), ring: a.BC == Ring})
+			}
+		}
+		if len(lad) == 0 {
+			return nil
+		}
+		// The max-th lowest level lies at or below ε_i(first+max) for every
+		// axis i, so n ≤ first+max on each axis is enough.
+		idx := make([]int, len(lad))
+		var walk func(d int, g float64)
+		walk = func(d int, g float64) {
+			if d == len(lad) {
+				w := v.Degeneracy * c.SpinDegeneracy
+				for i, l := range lad {
+					w *= int(l.weight(idx[i]))
+				}
+				all = append(all, state{g: g, w: w, valley: v.Label, n: append([]int(nil), idx...)})
+				return
+			}
+			l := lad[d]
+			for n := l.first(); n <= l.first()+max; n++ {
+				idx[d] = n
+				walk(d+1, g+l.q*float64(n)*float64(n))
+			}
+		}
+		walk(0, 0)
+	}
+	sort.SliceStable(all, func(i, j int) bool { return all[i].g < all[j].g })
+	var out []Level
+	for _, s := range all {
+		e := Energy(s.g, c.AlphaPerEV)
+		if n := len(out); n > 0 && math.Abs(out[n-1].EnergyEV-e) <= 1e-9*math.Abs(e) {
+			out[n-1].Degeneracy += s.w
+			if !contains(out[n-1].Valleys, s.valley) && s.valley != "" {
+				out[n-1].Valleys = append(out[n-1].Valleys, s.valley)
+			}
+			continue
+		}
+		if len(out) == max {
+			break
+		}
+		l := Level{EnergyEV: e, Degeneracy: s.w, N: s.n}
+		if s.valley != "" {
+			l.Valleys = []string{s.valley}
+		}
+		out = append(out, l)
+	}
+	return out
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// Shape is the line shape that broadens each level of a fully confined
+// conductor into a peak of D(E).
+type Shape int
+
+const (
+	Gaussian Shape = iota
+	Lorentzian
+)
+
+// maxEnumerated is the number of states below which Broadened sums one
+// exact peak per level; above it the levels are binned first.
+const maxEnumerated = 100_000
+
+// maxBins caps the bins of the binned broadening.
+const maxBins = 16_384
+
+// Broadened returns D(E) of a fully confined conductor: every level a
+// normalised Gaussian (standard deviation etaEV) or Lorentzian (half width
+// etaEV), in states per eV, and the broadening actually used (wider than
+// etaEV only when more than maxBins bins would be needed).
+//
+// Small conductors sum one peak per level exactly. Large ones bin the level
+// count N(E) at a width of at most η/8 (cloud-in-cell would add nothing: the
+// bin counts come from the exact staircase) and sum a peak per bin; the
+// peak positions are then off by at most half a bin. Lorentzian tails are cut
+// at 64η, Gaussian ones at 8η.
+func (k *Counter) Broadened(ctx context.Context, energiesEV []float64, etaEV float64, shape Shape) ([]float64, float64, error) {
+	if !(etaEV > 0) {
+		panic("spectrum: broadening must be positive")
+	}
+	reach := 8 * etaEV
+	if shape == Lorentzian {
+		reach = 64 * etaEV
+	}
+	lo, hi := energiesEV[0], energiesEV[0]
+	for _, e := range energiesEV {
+		lo, hi = math.Min(lo, e), math.Max(hi, e)
+	}
+	lo = math.Max(lo-reach, 0)
+	hi = math.Min(hi+reach, Energy(k.gammaMax/(1+4*tieRel), k.c.AlphaPerEV))
+	out := make([]float64, len(energiesEV))
+	if hi <= lo {
+		return out, etaEV, nil
+	}
+	peak := func(x float64) float64 {
+		if shape == Lorentzian {
+			return etaEV / math.Pi / (x*x + etaEV*etaEV)
+		}
+		return math.Exp(-x*x/(2*etaEV*etaEV)) / (etaEV * math.Sqrt(2*math.Pi))
+	}
+	add := func(e, w float64) {
+		for i, x := range energiesEV {
+			if d := x - e; math.Abs(d) <= reach {
+				out[i] += w * peak(d)
+			}
+		}
+	}
+	top := []float64{hi}
+	if err := k.States(ctx, top, top); err != nil {
+		return nil, 0, err
+	}
+	if top[0] <= maxEnumerated {
+		for _, l := range k.levelsBelow(hi) {
+			if l.e >= lo {
+				add(l.e, l.w)
+			}
+		}
+		return out, etaEV, nil
+	}
+	bins := int(math.Ceil((hi - lo) / (etaEV / 8)))
+	used := etaEV
+	if bins > maxBins {
+		bins = maxBins
+		used = math.Max(etaEV, (hi-lo)/float64(bins)*8)
+	}
+	edges := make([]float64, bins+1)
+	for i := range edges {
+		edges[i] = lo + (hi-lo)*float64(i)/float64(bins)
+	}
+	counts := make([]float64, len(edges))
+	if err := k.States(ctx, edges, counts); err != nil {
+		return nil, 0, err
+	}
+	for i := 0; i < bins; i++ {
+		if w := counts[i+1] - counts[i]; w > 0 {
+			add((edges[i]+edges[i+1])/2, w)
+		}
+	}
+	// The states in (lo−, edges[0]] are the level sitting on the lower edge.
+	if counts[0] > 0 && lo > 0 {
+		prev := []float64{math.Max(lo-(hi-lo)/float64(bins), 0)}
+		if err := k.States(ctx, prev, prev); err != nil {
+			return nil, 0, err
+		}
+		if w := counts[0] - prev[0]; w > 0 {
+			add(lo, w)
+		}
+	} else if counts[0] > 0 {
+		add(0, counts[0])
+	}
+	return out, used, nil
+}
+
+type weighted struct{ e, w float64 }
+
+// levelsBelow enumerates every confined level up to emaxEV (a few ×10⁵ at
+// most: Broadened only calls it for small conductors).
+func (k *Counter) levelsBelow(emaxEV float64) []weighted {
+	gmax := Gamma(emaxEV, k.c.AlphaPerEV) * (1 + tieRel)
+	var out []weighted
+	for vi := range k.valleys {
+		v := &k.valleys[vi]
+		var walk func(d int, g, w float64)
+		walk = func(d int, g, w float64) {
+			if d == len(v.conf) {
+				out = append(out, weighted{Energy(g, k.c.AlphaPerEV), w * v.weight})
+				return
+			}
+			l := v.conf[d]
+			for n := l.first(); n <= l.top(gmax-g); n++ {
+				walk(d+1, g+l.q*float64(n)*float64(n), w*l.weight(n))
+			}
+		}
+		walk(0, 0, 1)
+	}
+	return out
+}

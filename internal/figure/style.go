@@ -68,7 +68,7 @@ var comparePalette = [8]look{
 	{color: rgb(0x8E6BD6), width: 2.0, dashes: []vg.Length{12, 3}, glyph: draw.RingGlyph{}},
 	{color: rgb(0x6B5A10), width: 2.0, dashes: []vg.Length{4, 2, 1.5, 2, 1.5, 2}, glyph: draw.BoxGlyph{}},
 	{color: rgb(0x72C3F0), width: 2.0, dashes: []vg.Length{3, 2}, glyph: draw.PlusGlyph{}},
-	{color: rgb(0x555555), width: 2.0, dashes: []vg.Length{10, 2, 3, 2}, glyph: draw.CrossGlyph{}},
+	{color: rgb(0x222222), width: 2.0, dashes: []vg.Length{10, 2, 3, 2}, glyph: draw.CrossGlyph{}},
 }
 
 // lookFor returns the style of s; it panics on a Role or Kind outside the

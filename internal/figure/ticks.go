@@ -103,7 +103,10 @@ func (logTicks) Ticks(min, max float64) []plot.Tick {
 	lo := int(math.Floor(math.Log10(min) + 1e-9))
 	hi := int(math.Ceil(math.Log10(max) - 1e-9))
 	decades := hi - lo
-	every := 1 + decades/8
+	every := (decades + 7) / 8
+	if every < 1 {
+		every = 1
+	}
 	plainOK := lo >= -2 && hi <= 3
 	short := math.Log10(max)-math.Log10(min) < 1.5
 	var ticks []plot.Tick
@@ -113,6 +116,9 @@ func (logTicks) Ticks(min, max float64) []plot.Tick {
 				break
 			}
 			v := float64(m) * math.Pow10(e)
+			if v < min*(1-1e-9) || v > max*(1+1e-9) {
+				continue
+			}
 			t := plot.Tick{Value: v}
 			switch {
 			case m == 1 && e%every == 0:

@@ -2,6 +2,7 @@ package store
 
 import (
 	"context"
+	"database/sql"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -34,7 +35,17 @@ func (s *Store) Backup(ctx context.Context, toPath string) error {
 	}
 	// The absolute path begins with "/", so SQLite never reads it as a
 	// "file:" URI.
-	if _, err := s.r.ExecContext(ctx, `VACUUM INTO ?`, abs); err != nil {
+	// A connection of its own: the pools' readers are query_only, which
+	// forbids writing even the target file.
+	src, err := sql.Open("sqlite", dsn(s.path, backupSource))
+	if err != nil {
+		return fmt.Errorf("store: backup: %w", err)
+	}
+	_, err = src.ExecContext(ctx, `VACUUM INTO ?`, abs)
+	if cerr := src.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
 		return fmt.Errorf("store: backup to %s: %w", abs, err)
 	}
 	// SQLite writes the copy without syncing it.

@@ -136,6 +136,10 @@ func dsn(abs string, role connRole) string {
 	case readOnly:
 		q.Add("_pragma", "query_only(1)")
 		q.Set("mode", "ro")
+	case backupSource:
+		// VACUUM INTO writes the target file, which query_only forbids;
+		// mode=ro still keeps the source itself unwritable.
+		q.Set("mode", "ro")
 	}
 	return "file:" + path + "?" + q.Encode()
 }
@@ -144,9 +148,10 @@ func dsn(abs string, role connRole) string {
 type connRole int
 
 const (
-	writer   connRole = iota // the single read-write connection
-	reader                   // the read pool of a read-write store
-	readOnly                 // the read pool of a store opened ReadOnly
+	writer       connRole = iota // the single read-write connection
+	reader                       // the read pool of a read-write store
+	readOnly                     // the read pool of a store opened ReadOnly
+	backupSource                 // a one-off connection that Backup reads from
 )
 
 // Close closes the database. The writer closes last, so SQLite checkpoints

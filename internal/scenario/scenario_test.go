@@ -1,0 +1,189 @@
+package scenario
+
+import (
+	"context"
+	"encoding/json"
+	"math"
+	"net/url"
+	"testing"
+)
+
+func TestParseErrorsNameTheKey(t *testing.T) {
+	tests := []struct {
+		query, key string
+	}{
+		{"material=unobtainium", "material"},
+		{"lx=0", "lx"},
+		{"lx=-5nm", "lx"},
+		{"lx=NaN", "lx"},
+		{"lx=1e9m", "lx"},
+		{"ly=10 furlongs", "ly"},
+		{"dims=4", "dims"},
+		{"dims=0", "dims"},
+		{"bx=wall", "bx"},
+		{"emin=1&emax=0.5", "emax"},
+		{"points=100000", "points"},
+		{"points=1", "points"},
+		{"temp=-1", "temp"},
+		{"ef=0.1&density=1e18", "density"},
+		{"density=-3", "density"},
+		{"eta=0", "eta"},
+		{"along=z&dims=2", "along"},
+		{"gs=3", "gs"},
+		{"material=custom&m=0", "m"},
+		{"material=custom&gv=0", "gv"},
+		{"alpha=-1", "alpha"},
+		{"mfp=abc", "mfp"},
+		{"shape=square", "shape"},
+		{"bogus=1", "bogus"},
+		{"emax=1e99", "emax"},
+		{"budget=0", "budget"},
+	}
+	many := "at="
+	for i := 0; i < MaxAt+1; i++ {
+		if i > 0 {
+			many += ","
+		}
+		many += "0.1"
+	}
+	tests = append(tests, struct{ query, key string }{many, "at"})
+	for _, tt := range tests {
+		t.Run(tt.query, func(t *testing.T) {
+			q, _ := url.ParseQuery(tt.query)
+			_, err := Parse(q)
+			e, ok := AsError(err)
+			if !ok {
+				t.Fatalf("want a scenario error, got %v", err)
+			}
+			if e.Key != tt.key || e.Code != Invalid || e.Msg == "" {
+				t.Errorf("got key %q code %d msg %q, want key %q", e.Key, e.Code, e.Msg, tt.key)
+			}
+		})
+	}
+}
+
+func TestCanonicalRoundTrip(t *testing.T) {
+	for _, q := range []string{
+		"", "material=si&dims=3&lx=5nm&ly=5nm&lz=0.1um&bz=ring",
+		"material=custom&m=0.2&mz=0.9&gv=2&alpha=0.5&dims=2&lx=200A&ly=2e-8m&by=open&along=y",
+		"material=cu&ef=7&temp=4.2&mfp=40nm&at=1,2,3&shape=lorentzian&eta=0.01",
+		"density=1e6&dims=1&lx=1um&bx=open",
+	} {
+		v, _ := url.ParseQuery(q)
+		s, err := Parse(v)
+		if err != nil {
+			t.Fatalf("%q: %v", q, err)
+		}
+		v2, _ := url.ParseQuery(s.Canonical())
+		s2, err := Parse(v2)
+		if err != nil {
+			t.Fatalf("canonical %q: %v", s.Canonical(), err)
+		}
+		if s.Canonical() != s2.Canonical() {
+			t.Errorf("%q: %q ≠ %q", q, s.Canonical(), s2.Canonical())
+		}
+	}
+}
+
+// TestJSONContract checks the keys DESIGN.md promises.
+func TestJSONContract(t *testing.T) {
+	q, _ := url.ParseQuery("material=gaas&dims=3&lx=8nm&ly=9nm&lz=50nm&bz=box&at=0.1,0.2&temp=77&points=50")
+	s, err := Parse(q)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, _ := json.Marshal(res)
+	var doc map[string]any
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"scenario", "method", "at", "observables", "curves", "levels", "ef_eV"} {
+		if _, ok := doc[k]; !ok {
+			t.Errorf("missing %q", k)
+		}
+	}
+	at := doc["at"].([]any)
+	if len(at) != 2 {
+		t.Fatalf("at has %d entries", len(at))
+	}
+	p := at[0].(map[string]any)
+	for _, k := range []string{"scenario", "box", "ring", "continuum", "smooth"} {
+		if _, ok := p["states"].(map[string]any)[k]; !ok {
+			t.Errorf("at.states.%s missing", k)
+		}
+	}
+	for _, k := range []string{"scenario", "box", "ring", "continuum"} {
+		if _, ok := p["modes"].(map[string]any)[k]; !ok {
+			t.Errorf("at.modes.%s missing", k)
+		}
+		o := doc["observables"].(map[string]any)[k].(map[string]any)
+		for _, f := range []string{"electrons", "density", "density_unit", "conductance_S", "quantum_capacitance_F"} {
+			if _, ok := o[f]; !ok {
+				t.Errorf("observables.%s.%s missing", k, f)
+			}
+		}
+	}
+	if doc["method"] != "exact" {
+		t.Errorf("method %v", doc["method"])
+	}
+	// A fully confined scenario: scenario == box, and the counts are integers.
+	for _, v := range res.At {
+		if v.States["scenario"] != v.States["box"] || v.States["box"] != math.Trunc(v.States["box"]) {
+			t.Errorf("box counts %v", v.States)
+		}
+	}
+}
+
+func TestAsymptoticFallback(t *testing.T) {
+	q, _ := url.ParseQuery("material=cu&dims=3&lx=50nm&ly=50nm&lz=50nm&bz=box&points=20&budget=1e6&temp=0")
+	s, _ := Parse(q)
+	res, err := Run(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Method != "asymptotic" || res.ErrorEstimate == nil {
+		t.Fatalf("method %s", res.Method)
+	}
+	// Near the switch-over the exact count lies within the estimate.
+	s.Budget = DefaultBudget
+	exact, err := Run(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if exact.Method != "exact" {
+		t.Fatal(exact.Method)
+	}
+	d := math.Abs(exact.StatesBelow - res.StatesBelow)
+	if d > *res.ErrorEstimate {
+		t.Errorf("|exact − asymptotic| = %g beyond the estimate %g", d, *res.ErrorEstimate)
+	}
+}
+
+func FuzzParse(f *testing.F) {
+	for _, s := range []string{"", "material=si&lx=5nm", "dims=2&by=ring&along=x", "at=0.1,0.2&ef=0.1", "material=custom&m=0.1&gv=2", "lx=%ZZ"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, raw string) {
+		q, err := url.ParseQuery(raw)
+		if err != nil {
+			return
+		}
+		s, err := Parse(q)
+		if err != nil {
+			if _, ok := AsError(err); !ok {
+				t.Fatalf("Parse(%q) error without a key: %v", raw, err)
+			}
+			return
+		}
+		// A valid scenario encodes and parses back to itself.
+		v, _ := url.ParseQuery(s.Canonical())
+		s2, err := Parse(v)
+		if err != nil || s2.Canonical() != s.Canonical() {
+			t.Fatalf("canonical round trip of %q: %v", raw, err)
+		}
+	})
+}

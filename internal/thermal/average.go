@@ -21,7 +21,7 @@ const (
 	DefaultMaxEvals = 20000 // cap on curve evaluations per integral
 	initialCells    = 32    // uniform cells on each side of E_F to start
 	batchFraction   = 0.5   // refine every cell within this factor of the worst
-	absFloorScale   = 1e-18 // absolute floor on the bound, relative to |c|
+	absFloorScale   = 1e-24 // absolute floor on the bound, relative to |c|
 	monotoneSlack   = 1e-12 // relative decrease of c tolerated as rounding
 )
 
@@ -35,7 +35,7 @@ const (
 // Δc = c(b) − c(a). The estimate is the centre of that interval and half
 // its width is a rigorous error bound. Cells with the largest bounds are
 // bisected, their midpoints evaluated in one batch, until the total bound
-// is below RelTol·|value| (or an absolute floor 1e-18·max|c|, or AbsTol) or
+// is below RelTol·|value| (or an absolute floor 1e-24·max|c|, or AbsTol) or
 // MaxEvals is spent. A cell with Δc = 0 is exactly flat and never refined,
 // so a few levels cost about 35 evaluations each and a single level at
 // E_l gives w(E_l)·jump to the requested tolerance. Outside the window the
@@ -336,8 +336,86 @@ func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w fun
 			}
 		}
 	}
-	r.sum, r.bound = totals(h.cells)
+	r.sum, r.bound = finalTotals(h.cells, w)
 	return r, nil
+}
+
+// finalTotals sums the cells with a third-order estimate inside each cell's
+// rigorous interval. The curve is interpolated between the nodes by the
+// monotone piecewise-cubic Hermite interpolant (Fritsch & Carlson, SIAM J.
+// Numer. Anal. 17, 238 (1980), with the Fritsch–Butland node slopes), and
+// ∫ w dc over each cell is taken with 3-point Gauss–Legendre on w·c′
+// (c′ is quadratic, so the rule gives Δc exactly). Since the interpolant is
+// monotone, the estimate is a convex combination of values of w times Δc:
+// it stays inside [min w, max w]·Δc, and the cell's bound becomes the
+// larger distance to the interval's ends. For a continuum this makes the
+// value accurate to O(h³) or better instead of O(h²), at no curve
+// evaluations; for a staircase it changes nothing the bound does not cover.
+func finalTotals(cells []cell, w func(float64) float64) (sum, bound float64) {
+	order := make([]int, len(cells))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortFunc(order, func(i, j int) int {
+		switch {
+		case cells[i].a < cells[j].a:
+			return -1
+		case cells[i].a > cells[j].a:
+			return 1
+		}
+		return 0
+	})
+	secant := func(k int) (h, delta float64) {
+		c := &cells[order[k]]
+		h = c.b - c.a
+		if h > 0 {
+			delta = c.jump() / h
+		}
+		return h, delta
+	}
+	// slope at the node between cells k−1 and k (Fritsch–Butland).
+	nodeSlope := func(k int) float64 {
+		if k == 0 || k == len(order) {
+			_, d := secant(min(k, len(order)-1))
+			return d
+		}
+		h0, d0 := secant(k - 1)
+		h1, d1 := secant(k)
+		if d0 <= 0 || d1 <= 0 {
+			return 0
+		}
+		w1, w2 := 2*h1+h0, h1+2*h0
+		return (w1 + w2) / (w1/d0 + w2/d1)
+	}
+	// 3-point Gauss–Legendre nodes on [0, 1] and weights.
+	t := [3]float64{0.5 - 0.5*math.Sqrt(0.6), 0.5, 0.5 + 0.5*math.Sqrt(0.6)}
+	gw := [3]float64{5.0 / 18, 8.0 / 18, 5.0 / 18}
+	var s, cs, b, cb float64
+	dLeft := nodeSlope(0)
+	for k, i := range order {
+		dRight := nodeSlope(k + 1)
+		c := &cells[i]
+		jump := c.jump()
+		if jump <= 0 || c.b <= c.a {
+			dLeft = dRight
+			continue
+		}
+		h := c.b - c.a
+		// c′(t)·h for the Hermite cubic on t ∈ [0, 1]:
+		// 6t(1−t)Δc + (1 − 4t + 3t²)h·d_a + (3t² − 2t)h·d_b.
+		est := 0.0
+		for q := range t {
+			tq := t[q]
+			dc := 6*tq*(1-tq)*jump + (1-4*tq+3*tq*tq)*h*dLeft + (3*tq*tq-2*tq)*h*dRight
+			est += gw[q] * dc * w(c.a+tq*h)
+		}
+		lo, hi := math.Min(c.wa, c.wb)*jump, math.Max(c.wa, c.wb)*jump
+		est = math.Min(math.Max(est, lo), hi) // rounding only
+		s, cs = twoSum(s, cs, est)
+		b, cb = twoSum(b, cb, math.Max(est-lo, hi-est))
+		dLeft = dRight
+	}
+	return s + cs, b + cb
 }
 
 // totals returns Σ estimate and Σ bound, compensated (Neumaier) since

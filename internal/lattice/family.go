@@ -142,36 +142,48 @@ func zigzagGapEV(gamma0EV float64, n int) (float64, error) {
 // K = (φ1, φ2) = (2π/3, −2π/3) gives μ_K = (n − m)/3 (+ a lattice shift)
 // and s_K = 2π(t1 − t2)/3; the shift by an integer c·(a, b) with
 // t1·a + t2·b = c brings s_K into [−π, π] and moves μ_K by c·(na + mb). The
-// lines ⌊μ_K⌋−1 … ⌈μ_K⌉+1 are searched along s ∈ s_K ± π/4; the mirror K'
-// = −K gives the same gap. It is zero iff (n − m) ≡ 0 (mod 3) (Hamada et al.
+// lines ⌊μ_K⌋−1 … ⌈μ_K⌉+1 are searched along s ∈ s_K ± π/4 (the mirror K'
+// = −K gives the same gap); tubes of at most smallTubeHexagons hexagons per
+// cell, whose gap can come from a line farther from K, search every line. It is zero iff (n − m) ≡ 0 (mod 3) (Hamada et al.
 // 1992).
 func TubeGapEV(gamma0EV float64, n, m int) float64 {
 	t1, t2, nhex := tubeCell(n, m)
-	a0, b0 := extendedGCD(t1, t2) // t1·a0 + t2·b0 = 1
-	x := float64(t1-t2) / 3
-	c := -math.Round(x)
-	sK := 2 * math.Pi * (x + c)
-	ci := int(c)
-	muK := float64(n-m)/3 + float64(ci*(n*a0+m*b0))
 	lo := math.Inf(1)
-	for mu := int(math.Floor(muK)) - 1; mu <= int(math.Ceil(muK))+1; mu++ {
-		mm := mod(mu, nhex)
-		f := func(s float64) float64 { return tubeBand(gamma0EV, n, m, t1, t2, nhex, mm, s) }
+	search := func(mu int, from, to float64) {
+		f := func(s float64) float64 { return tubeBand(gamma0EV, n, m, t1, t2, nhex, mod(mu, nhex), s) }
 		const samples = 32
-		const half = math.Pi / 4
-		best, bestS := math.Inf(1), sK
+		best, bestS := math.Inf(1), from
 		for i := 0; i <= samples; i++ {
-			s := sK - half + 2*half*float64(i)/samples
+			s := from + (to-from)*float64(i)/samples
 			if v := f(s); v < best {
 				best, bestS = v, s
 			}
 		}
-		step := 2 * half / samples
+		step := (to - from) / samples
 		_, v := goldenMin(f, bestS-step, bestS+step)
 		lo = math.Min(lo, math.Min(v, best))
 	}
+	if nhex <= smallTubeHexagons {
+		// Thin tubes: the lowest band need not be the one nearest K.
+		for mu := 0; mu < nhex; mu++ {
+			search(mu, -math.Pi, math.Pi)
+		}
+		return 2 * snap(lo, snapFraction*gamma0EV)
+	}
+	a0, b0 := extendedGCD(t1, t2) // t1·a0 + t2·b0 = 1
+	x := float64(t1-t2) / 3
+	c := -math.Round(x)
+	sK := 2 * math.Pi * (x + c)
+	muK := float64(n-m)/3 + c*float64(n*a0+m*b0)
+	for mu := int(math.Floor(muK)) - 1; mu <= int(math.Ceil(muK))+1; mu++ {
+		search(mu, sK-math.Pi/4, sK+math.Pi/4)
+	}
 	return 2 * snap(lo, snapFraction*gamma0EV)
 }
+
+// smallTubeHexagons is the cell size up to which TubeGapEV searches every
+// cutting line instead of those next to K.
+const smallTubeHexagons = 400
 
 // extendedGCD returns (x, y) with a·x + b·y = gcd(a, b).
 func extendedGCD(a, b int) (int, int) {

@@ -3,6 +3,7 @@ package store
 import (
 	"context"
 	"database/sql"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"slices"
@@ -141,32 +142,22 @@ func (s *Store) insert(ctx context.Context, r Review) (Review, error) {
 	return r, nil
 }
 
+// reviewColumns are a review's columns from a source aliased r, with its
+// scenarios in position order as a JSON array, so each read is one
+// statement and so one snapshot. (ORDER BY inside an aggregate needs
+// SQLite 3.44 or later.)
+const reviewColumns = `r.id, r.title, r.notes, r.created,
+	(SELECT json_group_array(query ORDER BY position) FROM review_scenario WHERE review_id = r.id)`
+
 // Get returns the review with the given id, or ErrNotFound.
 func (s *Store) Get(ctx context.Context, id int64) (Review, error) {
-	tx, err := s.r.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
-	if err != nil {
-		return Review{}, fmt.Errorf("store: get: %w", err)
-	}
-	defer tx.Rollback() // a read transaction; nothing to commit
-
-	r := Review{ID: id}
-	var created string
-	err = tx.QueryRowContext(ctx, `SELECT title, notes, created FROM review WHERE id = ?`, id).
-		Scan(&r.Title, &r.Notes, &created)
+	r, err := scanReview(s.r.QueryRowContext(ctx, `SELECT `+reviewColumns+` FROM review AS r WHERE id = ?`, id))
 	if errors.Is(err, sql.ErrNoRows) {
 		return Review{}, fmt.Errorf("store: review %d: %w", id, ErrNotFound)
 	}
 	if err != nil {
 		return Review{}, fmt.Errorf("store: get %d: %w", id, err)
 	}
-	if r.Created, err = parseCreated(created); err != nil {
-		return Review{}, fmt.Errorf("store: get %d: %w", id, err)
-	}
-	byID, err := scenarios(ctx, tx, `SELECT review_id, query FROM review_scenario WHERE review_id = ? ORDER BY position`, id)
-	if err != nil {
-		return Review{}, fmt.Errorf("store: get %d: %w", id, err)
-	}
-	r.Scenarios = byID[id]
 	return r, nil
 }
 
@@ -179,86 +170,51 @@ func (s *Store) List(ctx context.Context, titleQuery string, limit int) ([]Revie
 	}
 	limit = min(limit, MaxListLimit)
 	pattern := "%" + escapeLike(strings.ToLower(strings.TrimSpace(titleQuery))) + "%"
-
-	tx, err := s.r.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
-	if err != nil {
-		return nil, fmt.Errorf("store: list: %w", err)
-	}
-	defer tx.Rollback()
-
-	// One read transaction, so both queries see the same snapshot.
-	const page = `SELECT id FROM review WHERE title_fold LIKE ?1 ESCAPE '\'
-		ORDER BY created DESC, id DESC LIMIT ?2`
-	rows, err := tx.QueryContext(ctx,
-		`SELECT id, title, notes, created FROM review WHERE title_fold LIKE ?1 ESCAPE '\'
-		ORDER BY created DESC, id DESC LIMIT ?2`,
+	rows, err := s.r.QueryContext(ctx,
+		// The page is cut first, so scenarios are gathered only for it.
+		`SELECT `+reviewColumns+` FROM (
+			SELECT id, title, notes, created FROM review
+			WHERE title_fold LIKE ? ESCAPE '\' ORDER BY created DESC, id DESC LIMIT ?
+		) AS r ORDER BY r.created DESC, r.id DESC`,
 		pattern, limit)
 	if err != nil {
 		return nil, fmt.Errorf("store: list: %w", err)
 	}
-	var out []Review
+	defer rows.Close()
+	out := []Review{}
 	for rows.Next() {
-		var r Review
-		var created string
-		if err := rows.Scan(&r.ID, &r.Title, &r.Notes, &created); err != nil {
-			rows.Close()
+		r, err := scanReview(rows)
+		if err != nil {
 			return nil, fmt.Errorf("store: list: %w", err)
-		}
-		if r.Created, err = parseCreated(created); err != nil {
-			rows.Close()
-			return nil, fmt.Errorf("store: list: review %d: %w", r.ID, err)
 		}
 		out = append(out, r)
 	}
-	rows.Close()
 	if err := rows.Err(); err != nil {
 		return nil, fmt.Errorf("store: list: %w", err)
-	}
-	if len(out) == 0 {
-		return []Review{}, nil
-	}
-	byID, err := scenarios(ctx, tx,
-		`SELECT review_id, query FROM review_scenario WHERE review_id IN (`+page+`) ORDER BY review_id, position`,
-		pattern, limit)
-	if err != nil {
-		return nil, fmt.Errorf("store: list: %w", err)
-	}
-	for i := range out {
-		out[i].Scenarios = byID[out[i].ID]
 	}
 	return out, nil
 }
 
-// scenarios runs a query yielding (review_id, query) rows in position order
-// and groups them by review.
-func scenarios(ctx context.Context, tx *sql.Tx, query string, args ...any) (map[int64][]string, error) {
-	rows, err := tx.QueryContext(ctx, query, args...)
+// scanReview scans one row of reviewColumns.
+func scanReview(row interface{ Scan(...any) error }) (Review, error) {
+	var r Review
+	var created, scenarios string
+	if err := row.Scan(&r.ID, &r.Title, &r.Notes, &created, &scenarios); err != nil {
+		return Review{}, err
+	}
+	t, err := time.Parse(time.RFC3339Nano, created)
 	if err != nil {
-		return nil, err
+		return Review{}, fmt.Errorf("review %d: stored creation time %q: %w", r.ID, created, err)
 	}
-	defer rows.Close()
-	m := make(map[int64][]string)
-	for rows.Next() {
-		var id int64
-		var q string
-		if err := rows.Scan(&id, &q); err != nil {
-			return nil, err
-		}
-		m[id] = append(m[id], q)
+	r.Created = t.UTC()
+	if err := json.Unmarshal([]byte(scenarios), &r.Scenarios); err != nil {
+		return Review{}, fmt.Errorf("review %d: stored scenarios: %w", r.ID, err)
 	}
-	return m, rows.Err()
+	return r, nil
 }
 
 // escapeLike makes s match literally inside a LIKE pattern with ESCAPE '\',
 // so a user's "%" or "_" is searched for, not used as a wildcard.
 func escapeLike(s string) string {
 	return strings.NewReplacer(`\`, `\\`, `%`, `\%`, `_`, `\_`).Replace(s)
-}
-
-func parseCreated(s string) (time.Time, error) {
-	t, err := time.Parse(time.RFC3339Nano, s)
-	if err != nil {
-		return time.Time{}, fmt.Errorf("stored creation time %q: %w", s, err)
-	}
-	return t.UTC(), nil
 }

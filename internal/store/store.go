@@ -125,9 +125,9 @@ func dsn(abs string, role connRole) string {
 	q.Add("_pragma", fmt.Sprintf("busy_timeout(%d)", busyTimeoutMS))
 	q.Add("_pragma", "foreign_keys(1)")
 	q.Add("_pragma", "synchronous(FULL)")
-	q.Set("_txlock", "immediate")
 	switch role {
 	case writer:
+		q.Set("_txlock", "immediate")
 		// Setting WAL is a write to the file header; only the writer does it.
 		// The mode is persistent, so readers opened later find it set.
 		q.Add("_pragma", "journal_mode(WAL)")

@@ -181,8 +181,13 @@ func (r *prepared) xRange() (axisMap, error) {
 	a := axisMap{min: math.Inf(1), max: math.Inf(-1), log: r.fig.LogX}
 	for _, c := range r.series {
 		for _, run := range c.runs {
-			for _, x := range run.x {
-				a.min, a.max = math.Min(a.min, x), math.Max(a.max, x)
+			for _, x := range run.x { // finite: checked; plain compares are faster than math.Min
+				if x < a.min {
+					a.min = x
+				}
+				if x > a.max {
+					a.max = x
+				}
 			}
 		}
 	}
@@ -218,8 +223,11 @@ func (r *prepared) yRange() axisMap {
 				if c.Kind == Staircase && i+1 < len(run.x) && x < r.ax.min && run.x[i+1] > r.ax.min {
 					in = true // the step in force at the left edge
 				}
-				if in {
-					a.min, a.max = math.Min(a.min, run.y[i]), math.Max(a.max, run.y[i])
+				if in && run.y[i] < a.min {
+					a.min = run.y[i]
+				}
+				if in && run.y[i] > a.max {
+					a.max = run.y[i]
 				}
 			}
 		}

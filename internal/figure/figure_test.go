@@ -79,6 +79,8 @@ func TestDegenerateInputs(t *testing.T) {
 		{"LogY drops zeros", Figure{LogY: true, Series: []Series{{X: []float64{0, 1, 2, 3}, Y: []float64{0, 2, 0, 4}}}}},
 		{"tiny values", Figure{Series: []Series{{X: []float64{1e-12, 2e-12}, Y: []float64{1e-30, 3e-30}, Kind: Line}}}},
 		{"huge values", Figure{Series: []Series{{X: []float64{-1e300, 1e300}, Y: []float64{-1e300, 1e300}, Kind: Line}}}},
+		{"overflowing span", Figure{Series: []Series{{X: []float64{-1.7e308, 1.7e308}, Y: []float64{-1.7e308, 1.7e308}, Kind: Line}}}},
+		{"span tiny next to values", Figure{Series: []Series{{X: []float64{1e17, 1e17 + 16}, Y: []float64{1e17, 1e17 + 64}, Kind: Line}}}},
 		{"negative Index", Figure{Series: []Series{{X: []float64{1, 2}, Y: []float64{1, 2}, Role: RoleOther, Index: -3}}}},
 		{"no names", Figure{Series: []Series{{X: []float64{1, 2}, Y: []float64{1, 2}}}}},
 	} {
@@ -135,24 +137,47 @@ func TestPNG(t *testing.T) {
 
 // The frame must point at the drawn data: in the PNG, the pixel where the
 // frame puts a known point of a thick scenario line has the line's colour.
+// The log case checks the log10 mapping the Frame documents.
 func TestFrameLocatesData(t *testing.T) {
-	f := Figure{Series: []Series{{Name: "s", X: []float64{0, 10}, Y: []float64{0, 10}, Kind: Line, Role: RoleScenario}}}
-	var buf bytes.Buffer
-	fr, err := f.PNG(&buf, 100)
-	if err != nil {
-		t.Fatal(err)
-	}
-	img, err := png.Decode(&buf)
-	if err != nil {
-		t.Fatal(err)
-	}
-	want := roleLooks[RoleScenario].color
-	for _, v := range []float64{2.5, 5, 7.5} {
-		px := fr.Left + (v-fr.XMin)/(fr.XMax-fr.XMin)*(fr.Right-fr.Left)
-		py := fr.Bottom - (v-fr.YMin)/(fr.YMax-fr.YMin)*(fr.Bottom-fr.Top)
-		if !near(img, int(px), int(py), want) {
-			t.Errorf("no line colour at pixel (%.0f, %.0f) for (%g, %g)", px, py, v, v)
-		}
+	for _, tc := range []struct {
+		name       string
+		logX, logY bool
+		x, y, at   []float64
+	}{
+		{"linear", false, false, []float64{0, 10}, []float64{0, 10}, []float64{2.5, 5, 7.5}},
+		{"log-log", true, true, []float64{1, 1000}, []float64{1e-3, 1}, []float64{3, 30, 300}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			f := Figure{LogX: tc.logX, LogY: tc.logY, Series: []Series{{Name: "s", X: tc.x, Y: tc.y, Kind: Line, Role: RoleScenario}}}
+			var buf bytes.Buffer
+			fr, err := f.PNG(&buf, 100)
+			if err != nil {
+				t.Fatal(err)
+			}
+			img, err := png.Decode(&buf)
+			if err != nil {
+				t.Fatal(err)
+			}
+			norm := func(v, lo, hi float64, log bool) float64 {
+				if log {
+					return (math.Log10(v) - math.Log10(lo)) / (math.Log10(hi) - math.Log10(lo))
+				}
+				return (v - lo) / (hi - lo)
+			}
+			want := roleLooks[RoleScenario].color
+			for _, v := range tc.at {
+				// The straight line on these axes: y = x for linear, y = x/1000 for log-log.
+				y := v
+				if tc.logY {
+					y = v / 1000
+				}
+				px := fr.Left + norm(v, fr.XMin, fr.XMax, fr.LogX)*(fr.Right-fr.Left)
+				py := fr.Bottom - norm(y, fr.YMin, fr.YMax, fr.LogY)*(fr.Bottom-fr.Top)
+				if !near(img, int(px), int(py), want) {
+					t.Errorf("no line colour at pixel (%.0f, %.0f) for (%g, %g)", px, py, v, y)
+				}
+			}
+		})
 	}
 }
 
@@ -208,5 +233,29 @@ func TestSVGText(t *testing.T) {
 		if size := atof(t, m[1]); size < 10 {
 			t.Errorf("font size %gpt below 10 pt", size)
 		}
+	}
+}
+
+// The legend sits inside when a corner is free of data (N(E) leaves the
+// top-left empty) and beside the plot when every corner is taken (bands
+// fill the whole window), so it never hides a curve.
+func TestLegendPlacement(t *testing.T) {
+	for _, tc := range []struct {
+		name   string
+		fig    Figure
+		inside bool
+	}{
+		{"states: inside", statesFigure(), true},
+		{"bands: beside", bandsFigure(), false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			fr, err := tc.fig.SVG(io.Discard)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if inside := fr.Right > 0.9*fr.Width; inside != tc.inside {
+				t.Errorf("data area ends at %.0f of %.0f pt; legend inside = %v, want %v", fr.Right, fr.Width, inside, tc.inside)
+			}
+		})
 	}
 }

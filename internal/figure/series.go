@@ -54,27 +54,22 @@ func check(s Series, logX, logY bool) (clean, error) {
 			return c, fmt.Errorf("series %q: X[%d]=%g < X[%d]=%g: %w", s.Name, i, s.X[i], i-1, s.X[i-1], ErrUnsorted)
 		}
 	}
-	var cur run
-	flush := func() {
-		if len(cur.x) > 0 {
-			c.runs = append(c.runs, cur)
-		}
-		cur = run{}
-	}
-	for i := range s.X {
-		if (logX && s.X[i] <= 0) || (logY && s.Y[i] <= 0) {
-			if s.Kind == Staircase && len(cur.x) > 0 && !(logX && s.X[i] <= 0) {
-				// The run of the last drawable step ends where this one starts.
-				cur.x = append(cur.x, s.X[i])
-				cur.y = append(cur.y, cur.y[len(cur.y)-1])
-			}
-			flush()
+	// Runs are sub-slices of the caller's data, which is never modified.
+	start := 0
+	for i := 0; i <= len(s.X); i++ {
+		if i < len(s.X) && !((logX && s.X[i] <= 0) || (logY && s.Y[i] <= 0)) {
 			continue
 		}
-		cur.x = append(cur.x, s.X[i])
-		cur.y = append(cur.y, s.Y[i])
+		if i > start {
+			r := run{x: s.X[start:i:i], y: s.Y[start:i:i]}
+			if s.Kind == Staircase && i < len(s.X) && !(logX && s.X[i] <= 0) {
+				// The last drawable step runs on to where this one starts.
+				r.x, r.y = append(r.x, s.X[i]), append(r.y, s.Y[i-1])
+			}
+			c.runs = append(c.runs, r)
+		}
+		start = i + 1
 	}
-	flush()
 	return c, nil
 }
 

@@ -35,8 +35,10 @@ func (linearTicks) Ticks(min, max float64) []plot.Tick {
 	if sci {
 		exp = int(math.Floor(math.Log10(big)))
 	}
-	for k := math.Ceil(min / minor); k*minor <= max*(1+1e-12)+1e-300; k++ {
-		v := k * minor
+	k0 := math.Ceil(min / minor)
+	// Bounded, because on a span tiny next to its values k+1 == k.
+	for i := 0; i < 200 && (k0+float64(i))*minor <= max*(1+1e-12)+1e-300; i++ {
+		v := (k0 + float64(i)) * minor
 		if math.Abs(v) < minor*1e-9 {
 			v = 0
 		}

@@ -406,3 +406,19 @@ func BenchmarkList(b *testing.B) {
 		}
 	}
 }
+
+func TestCreateCanceled(t *testing.T) {
+	s, _ := openTemp(t)
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := s.Create(ctx, sample("never saved")); !errors.Is(err, context.Canceled) {
+		t.Errorf("Create with a canceled context: %v, want context.Canceled", err)
+	}
+	if n := countReviews(t, s); n != 0 {
+		t.Errorf("%d reviews after a canceled Create, want 0", n)
+	}
+	// The single writer connection is still usable afterwards.
+	if _, err := s.Create(context.Background(), sample("saved")); err != nil {
+		t.Errorf("Create after a canceled one: %v", err)
+	}
+}

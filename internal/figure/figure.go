@@ -179,15 +179,18 @@ func (f Figure) prepare() (*prepared, error) {
 // xRange is the fixed range if given, else the data's, padded if empty.
 func (r *prepared) xRange() (axisMap, error) {
 	a := axisMap{min: math.Inf(1), max: math.Inf(-1), log: r.fig.LogX}
+	// Points dropped for a log y axis still set the x range, so that a
+	// log-y figure shares its x axis with its linear twin.
 	for _, c := range r.series {
-		for _, run := range c.runs {
-			for _, x := range run.x { // finite: checked; plain compares are faster than math.Min
-				if x < a.min {
-					a.min = x
-				}
-				if x > a.max {
-					a.max = x
-				}
+		for _, x := range c.X { // finite: checked; plain compares are faster than math.Min
+			if a.log && x <= 0 {
+				continue
+			}
+			if x < a.min {
+				a.min = x
+			}
+			if x > a.max {
+				a.max = x
 			}
 		}
 	}

@@ -1,6 +1,7 @@
 package figure
 
 import (
+	"math"
 	"os"
 	"testing"
 )
@@ -27,5 +28,36 @@ func TestRenderToTmp(t *testing.T) {
 			out.Close()
 			t.Logf("%s.%s %+v", name, ext, fr)
 		}
+	}
+}
+
+func TestRenderDenseToTmp(t *testing.T) {
+	if os.Getenv("FIGURE_TMP") == "" {
+		t.Skip("set FIGURE_TMP=1 to write /tmp/figure-dos.png")
+	}
+	e := energies(1_000_000, 0.12)
+	dos := mapY(e, func(v float64) float64 {
+		s := 0.0
+		for n := 1; float64(n*n)*e1EV < v; n++ {
+			s += 1 / math.Sqrt(v-float64(n*n)*e1EV)
+		}
+		return s
+	})
+	f := Figure{Title: "Density of states, quantum wire", XLabel: "energy E (eV)", YLabel: "D(E) (1/(eV·nm))",
+		Series: []Series{
+			{Name: "scenario", X: e, Y: dos, Kind: Line, Role: RoleScenario},
+			{Name: "box N(E)", X: e, Y: mapY(e, boxCount), Kind: Staircase, Role: RoleBox},
+		}, Caption: "10⁶ samples per curve"}
+	out, _ := os.Create("/tmp/figure-dos.png")
+	defer out.Close()
+	if _, err := f.PNG(out, 150); err != nil {
+		t.Fatal(err)
+	}
+	f.LogY = true
+	f.Series = f.Series[1:]
+	out2, _ := os.Create("/tmp/figure-logn.png")
+	defer out2.Close()
+	if _, err := f.PNG(out2, 150); err != nil {
+		t.Fatal(err)
 	}
 }

@@ -53,7 +53,7 @@ func mergeSteps(x, y []float64) ([]float64, []float64) {
 }
 
 // collapseSteps keeps at most four points per column of a merged
-// staircase: every risers in a column becomes one riser at the column's first
+// staircase: all the risers in a column become one riser at the column's first
 // step, running through the column's extreme values to its last value.
 func collapseSteps(x, y []float64, a axisMap, cols int) ([]float64, []float64) {
 	ox, oy := make([]float64, 0, 4*cols), make([]float64, 0, 4*cols)

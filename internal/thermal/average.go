@@ -1,11 +1,11 @@
 package thermal
 
 import (
-	"container/heap"
 	"context"
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 )
 
 // Curve evaluates a non-decreasing, right-continuous function of energy
@@ -164,12 +164,15 @@ func (in Integrator) collapsed(efEV, kTEV float64) bool {
 	return efEV-step == efEV || efEV+step == efEV
 }
 
-// cell is (a, b] with the curve and the weight known at both ends.
+// cell is (a, b] with the curve and the weight known at both ends. Cells
+// form a list in energy order through next (bisection appends the right
+// half), so the final pass needs no sort.
 type cell struct {
 	a, b   float64
 	ca, cb float64
 	wa, wb float64
 	bound  float64
+	next   int32 // index of the cell to the right, −1 at the end
 }
 
 func (c *cell) jump() float64     { return c.cb - c.ca }
@@ -196,21 +199,73 @@ func (c *cell) setBound() error {
 	return nil
 }
 
-// cellHeap is a max-heap of cell indices by bound.
-type cellHeap struct {
-	idx   []int
-	cells []cell
+// workspace holds the buffers of one integral; pooled because solvers and
+// sweeps call Occupied many times in a row.
+type workspace struct {
+	cells        []cell
+	heap         []heapEntry // max-heap of refinable cells by bound
+	batch        []split
+	nodes, vals  []float64
+	mids, midVal []float64
 }
 
-func (h *cellHeap) Len() int           { return len(h.idx) }
-func (h *cellHeap) Less(i, j int) bool { return h.cells[h.idx[i]].bound > h.cells[h.idx[j]].bound }
-func (h *cellHeap) Swap(i, j int)      { h.idx[i], h.idx[j] = h.idx[j], h.idx[i] }
-func (h *cellHeap) Push(x any)         { h.idx = append(h.idx, x.(int)) }
-func (h *cellHeap) Pop() any {
-	n := len(h.idx) - 1
-	v := h.idx[n]
-	h.idx = h.idx[:n]
-	return v
+var workspaces = sync.Pool{New: func() any { return new(workspace) }}
+
+// heapEntry carries the bound with the index, so sifting touches only the
+// heap's own contiguous memory.
+type heapEntry struct {
+	bound float64
+	i     int32
+}
+
+// split is a cell chosen for bisection and its midpoint.
+type split struct {
+	mid float64
+	i   int32
+}
+
+func (ws *workspace) less(i, j int) bool { return ws.heap[i].bound > ws.heap[j].bound }
+
+func (ws *workspace) push(i int32) {
+	ws.heap = append(ws.heap, heapEntry{ws.cells[i].bound, i})
+	k := len(ws.heap) - 1
+	for k > 0 {
+		p := (k - 1) / 2
+		if !ws.less(k, p) {
+			break
+		}
+		ws.heap[k], ws.heap[p] = ws.heap[p], ws.heap[k]
+		k = p
+	}
+}
+
+func (ws *workspace) pop() int32 {
+	top := ws.heap[0]
+	n := len(ws.heap) - 1
+	ws.heap[0] = ws.heap[n]
+	ws.heap = ws.heap[:n]
+	k := 0
+	for {
+		l := 2*k + 1
+		if l >= n {
+			break
+		}
+		if r := l + 1; r < n && ws.less(r, l) {
+			l = r
+		}
+		if !ws.less(l, k) {
+			break
+		}
+		ws.heap[k], ws.heap[l] = ws.heap[l], ws.heap[k]
+		k = l
+	}
+	return top.i
+}
+
+func (ws *workspace) pushIfRefinable(i int32) {
+	if c := &ws.cells[i]; c.bound > 0 && c.splittable() {
+		ws.push(i)
+	}
 }
 
 type runResult struct {
@@ -224,37 +279,37 @@ type runResult struct {
 // run refines ∫_(lo,hi] w dc. offsetByCLo adds c(lo) to the value the
 // relative tolerance is measured against (Occupied).
 func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w func(float64) float64, offsetByCLo bool) (runResult, error) {
+	ws := workspaces.Get().(*workspace)
+	defer workspaces.Put(ws)
 	var r runResult
 	n := 2 * initialCells
-	nodes := make([]float64, n+1)
+	ws.nodes, ws.vals = slices.Grow(ws.nodes[:0], n+1)[:n+1], slices.Grow(ws.vals[:0], n+1)[:n+1]
+	nodes, vals := ws.nodes, ws.vals
 	for i := range nodes {
 		nodes[i] = efEV + float64(i-initialCells)/initialCells*in.WindowKT*kTEV
 	}
 	nodes[initialCells] = efEV // a node, so no cell straddles the peak of −f′
-	vals := make([]float64, n+1)
 	if err := evaluate(ctx, c, nodes, vals); err != nil {
 		return r, err
 	}
 	r.evals = n + 1
 	r.lo, r.hi, r.cLo, r.cHi = nodes[0], nodes[n], vals[0], vals[n]
 
-	h := &cellHeap{cells: make([]cell, 0, n+in.MaxEvals)}
+	ws.cells, ws.heap = ws.cells[:0], ws.heap[:0]
 	wPrev := w(nodes[0])
 	for i := range n {
 		wNext := w(nodes[i+1])
-		cl := cell{a: nodes[i], b: nodes[i+1], ca: vals[i], cb: vals[i+1], wa: wPrev, wb: wNext}
+		cl := cell{a: nodes[i], b: nodes[i+1], ca: vals[i], cb: vals[i+1], wa: wPrev, wb: wNext, next: int32(i + 1)}
 		if err := cl.setBound(); err != nil {
 			return r, err
 		}
-		h.cells = append(h.cells, cl)
+		ws.cells = append(ws.cells, cl)
 		wPrev = wNext
 	}
-	for i := range h.cells {
-		if h.cells[i].bound > 0 && h.cells[i].splittable() {
-			h.idx = append(h.idx, i)
-		}
+	ws.cells[n-1].next = -1
+	for i := range ws.cells {
+		ws.pushIfRefinable(int32(i))
 	}
-	heap.Init(h)
 
 	offset := 0.0
 	if offsetByCLo {
@@ -268,57 +323,48 @@ func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w fun
 		}
 		floor = absFloorScale * scale
 	}
-	sum, bound := totals(h.cells)
-	type split struct {
-		mid float64
-		i   int
-	}
-	var batch []split
-	var mids, cm []float64
+	sum, bound := totals(ws.cells)
 	for {
 		if bound <= math.Max(in.RelTol*math.Abs(offset+sum), floor) {
 			// Re-add from scratch: the running totals drift by rounding.
-			if sum, bound = totals(h.cells); bound <= math.Max(in.RelTol*math.Abs(offset+sum), floor) {
+			if sum, bound = totals(ws.cells); bound <= math.Max(in.RelTol*math.Abs(offset+sum), floor) {
 				r.converged = true
 				break
 			}
 		}
 		budget := in.MaxEvals - r.evals
-		if h.Len() == 0 || budget <= 0 {
+		if len(ws.heap) == 0 || budget <= 0 {
 			break
 		}
 		if err := ctx.Err(); err != nil {
 			return r, err
 		}
-		batch = batch[:0]
-		worst := h.cells[h.idx[0]].bound
-		for h.Len() > 0 && len(batch) < budget && h.cells[h.idx[0]].bound >= batchFraction*worst {
-			i := heap.Pop(h).(int)
-			batch = append(batch, split{0.5 * (h.cells[i].a + h.cells[i].b), i})
+		// Bisect every cell within a factor batchFraction of the worst:
+		// the greedy order of a heap, in batches the curve can amortise.
+		ws.batch = ws.batch[:0]
+		worst := ws.heap[0].bound
+		for len(ws.heap) > 0 && len(ws.batch) < budget && ws.heap[0].bound >= batchFraction*worst {
+			i := ws.pop()
+			ws.batch = append(ws.batch, split{0.5 * (ws.cells[i].a + ws.cells[i].b), i})
 		}
-		slices.SortFunc(batch, func(x, y split) int {
-			switch {
-			case x.mid < y.mid:
-				return -1
-			case x.mid > y.mid:
-				return 1
-			}
-			return 0
-		})
-		mids, cm = mids[:0], cm[:0]
-		for _, s := range batch {
-			mids = append(mids, s.mid)
+		slices.SortFunc(ws.batch, func(x, y split) int { return cmpFloat(x.mid, y.mid) })
+		ws.mids = ws.mids[:0]
+		for _, s := range ws.batch {
+			ws.mids = append(ws.mids, s.mid)
 		}
-		cm = slices.Grow(cm, len(mids))[:len(mids)]
-		if err := evaluate(ctx, c, mids, cm); err != nil {
+		ws.midVal = slices.Grow(ws.midVal[:0], len(ws.mids))[:len(ws.mids)]
+		if err := evaluate(ctx, c, ws.mids, ws.midVal); err != nil {
 			return r, err
 		}
-		r.evals += len(mids)
-		for k, s := range batch {
-			p := h.cells[s.i]
-			wm := w(s.mid)
-			left := cell{a: p.a, b: s.mid, ca: p.ca, cb: cm[k], wa: p.wa, wb: wm}
-			right := cell{a: s.mid, b: p.b, ca: cm[k], cb: p.cb, wa: wm, wb: p.wb}
+		r.evals += len(ws.mids)
+		for k, s := range ws.batch {
+			i := s.i
+			p := ws.cells[i]
+			m, cm := ws.mids[k], ws.midVal[k]
+			wm := w(m)
+			j := int32(len(ws.cells))
+			left := cell{a: p.a, b: m, ca: p.ca, cb: cm, wa: p.wa, wb: wm, next: j}
+			right := cell{a: m, b: p.b, ca: cm, cb: p.cb, wa: wm, wb: p.wb, next: p.next}
 			if err := left.setBound(); err != nil {
 				return r, err
 			}
@@ -327,17 +373,24 @@ func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w fun
 			}
 			sum += left.estimate() + right.estimate() - p.estimate()
 			bound += left.bound + right.bound - p.bound
-			h.cells[s.i] = left
-			h.cells = append(h.cells, right)
-			for _, i := range [2]int{s.i, len(h.cells) - 1} {
-				if h.cells[i].bound > 0 && h.cells[i].splittable() {
-					heap.Push(h, i)
-				}
-			}
+			ws.cells[i] = left
+			ws.cells = append(ws.cells, right)
+			ws.pushIfRefinable(i)
+			ws.pushIfRefinable(j)
 		}
 	}
-	r.sum, r.bound = finalTotals(h.cells, w)
+	r.sum, r.bound = finalTotals(ws.cells, w)
 	return r, nil
+}
+
+func cmpFloat(x, y float64) int {
+	switch {
+	case x < y:
+		return -1
+	case x > y:
+		return 1
+	}
+	return 0
 }
 
 // finalTotals sums the cells with a third-order estimate inside each cell's
@@ -352,35 +405,27 @@ func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w fun
 // value accurate to O(h³) or better instead of O(h²), at no curve
 // evaluations; for a staircase it changes nothing the bound does not cover.
 func finalTotals(cells []cell, w func(float64) float64) (sum, bound float64) {
-	order := make([]int, len(cells))
-	for i := range order {
-		order[i] = i
-	}
-	slices.SortFunc(order, func(i, j int) int {
-		switch {
-		case cells[i].a < cells[j].a:
-			return -1
-		case cells[i].a > cells[j].a:
-			return 1
-		}
-		return 0
-	})
-	secant := func(k int) (h, delta float64) {
-		c := &cells[order[k]]
+	secant := func(i int32) (h, delta float64) {
+		c := &cells[i]
 		h = c.b - c.a
 		if h > 0 {
 			delta = c.jump() / h
 		}
 		return h, delta
 	}
-	// slope at the node between cells k−1 and k (Fritsch–Butland).
-	nodeSlope := func(k int) float64 {
-		if k == 0 || k == len(order) {
-			_, d := secant(min(k, len(order)-1))
+	// Slope at the node between cells prev and cur (Fritsch–Butland);
+	// one-sided at the ends of the window.
+	nodeSlope := func(prev, cur int32) float64 {
+		if prev < 0 {
+			_, d := secant(cur)
 			return d
 		}
-		h0, d0 := secant(k - 1)
-		h1, d1 := secant(k)
+		if cur < 0 {
+			_, d := secant(prev)
+			return d
+		}
+		h0, d0 := secant(prev)
+		h1, d1 := secant(cur)
 		if d0 <= 0 || d1 <= 0 {
 			return 0
 		}
@@ -391,10 +436,11 @@ func finalTotals(cells []cell, w func(float64) float64) (sum, bound float64) {
 	t := [3]float64{0.5 - 0.5*math.Sqrt(0.6), 0.5, 0.5 + 0.5*math.Sqrt(0.6)}
 	gw := [3]float64{5.0 / 18, 8.0 / 18, 5.0 / 18}
 	var s, cs, b, cb float64
-	dLeft := nodeSlope(0)
-	for k, i := range order {
-		dRight := nodeSlope(k + 1)
+	prev := int32(-1)
+	dLeft := nodeSlope(-1, 0)
+	for i := int32(0); i >= 0; prev, i = i, cells[i].next {
 		c := &cells[i]
+		dRight := nodeSlope(i, c.next)
 		jump := c.jump()
 		if jump <= 0 || c.b <= c.a {
 			dLeft = dRight
@@ -415,6 +461,7 @@ func finalTotals(cells []cell, w func(float64) float64) (sum, bound float64) {
 		b, cb = twoSum(b, cb, math.Max(est-lo, hi-est))
 		dLeft = dRight
 	}
+	_ = prev
 	return s + cs, b + cb
 }
 

@@ -3,6 +3,10 @@ package lattice
 import (
 	"context"
 	"math"
+	"runtime"
+	"slices"
+
+	"golang.org/x/sync/errgroup"
 
 	lapack "gonum.org/v1/gonum/lapack/gonum"
 )
@@ -90,32 +94,72 @@ func fillZigzag(e []float64, gamma0EV, s float64) {
 	}
 }
 
-// zigzagSample solves the tridiagonal problem with LAPACK's Pal–Walker–Kahan
-// QL/QR (Dsterf, O(N²) per k) at the k ≥ 0 half of the grid and mirrors it,
-// since E(−k) = E(k) (time reversal). The spectrum is ± symmetric (bipartite
-// lattice), so band b ≥ 0 is stored as (λ_{N+b} − λ_{N−1−b})/2, which is
-// the symmetric part of the two mirror eigenvalues and never negative.
+// zigzagSample finds the spectrum at the k ≥ 0 half of the grid and mirrors
+// it, since E(−k) = E(k) (time reversal), splitting the k points among the
+// cores.
+//
+// The 2N×2N tridiagonal H has zero diagonal and off-diagonal
+// (d1, e1, d2, …, dN), so its eigenvalues are ±σ_i, σ_i the singular values
+// of the N×N bidiagonal B with diagonal d = t = 2γ0cos(ka/2) and
+// off-diagonal e = γ0 (Golub & Kahan, SIAM J. Numer. Anal. 2, 205 (1965)).
+// The ribbon's mirror symmetry makes B persymmetric, J·B·J = Bᵀ with J the
+// exchange matrix, so JB is symmetric and BᵀB = (JB)²: σ_i = |λ_i(JB)|. JB
+// joins row i to columns N−1−i (t) and N−2−i (γ0); visiting the rows in the
+// order N−1, 0, N−2, 1, … makes it an N×N symmetric tridiagonal with zero
+// diagonal except its last entry (t for odd N, γ0 for even N) and
+// off-diagonal t, γ0, t, γ0, …. That is a quarter of the size² of H, solved
+// with LAPACK's Pal–Walker–Kahan QL/QR (Dsterf); the test checks it against
+// Dsterf on H itself.
 func zigzagSample(ctx context.Context, gamma0EV float64, n int, s []float64, upper [][]float64) error {
-	var impl lapack.Implementation
-	d := make([]float64, 2*n)
-	e := make([]float64, 2*n-1)
 	k := len(s)
-	for i := k / 2; i < k; i++ {
-		if err := ctx.Err(); err != nil {
-			return err
-		}
-		clear(d)
-		fillZigzag(e, gamma0EV, s[i])
-		if !impl.Dsterf(2*n, d, e) {
-			return errNoConvergence
-		}
-		for b := 0; b < n; b++ {
-			v := (d[n+b] - d[n-1-b]) / 2
-			upper[b][i] = v
-			upper[b][k-1-i] = v
+	workers := max(1, min(runtime.GOMAXPROCS(0), 4, k/2))
+	g, ctx := errgroup.WithContext(ctx)
+	for w := 0; w < workers; w++ {
+		g.Go(func() error {
+			var impl lapack.Implementation
+			d := make([]float64, n)
+			e := make([]float64, max(n-1, 1))
+			// Each worker writes its own columns i and k−1−i of upper.
+			for i := k/2 + w; i < k; i += workers {
+				if err := ctx.Err(); err != nil {
+					return err
+				}
+				fillFolded(d, e[:n-1], gamma0EV, s[i])
+				if !impl.Dsterf(n, d, e[:n-1]) {
+					return errNoConvergence
+				}
+				for j := range d {
+					d[j] = math.Abs(d[j])
+				}
+				slices.Sort(d)
+				for b, v := range d {
+					upper[b][i] = v
+					upper[b][k-1-i] = v
+				}
+			}
+			return nil
+		})
+	}
+	return g.Wait()
+}
+
+// fillFolded writes the N×N tridiagonal JB of zigzagSample at s = k·a.
+func fillFolded(d, e []float64, gamma0EV, s float64) {
+	n := len(d)
+	t := 2 * gamma0EV * math.Cos(s/2)
+	clear(d)
+	if n%2 == 1 {
+		d[n-1] = t
+	} else {
+		d[n-1] = gamma0EV
+	}
+	for j := range e {
+		if j%2 == 0 {
+			e[j] = t
+		} else {
+			e[j] = gamma0EV
 		}
 	}
-	return nil
 }
 
 // tubeCell returns the translation vector T = t1·a1 + t2·a2 of the (n, m)

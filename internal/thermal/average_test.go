@@ -367,3 +367,45 @@ func TestOccupiedEvaluationCap(t *testing.T) {
 	t.Logf("dense: %d evaluations in %d batches, error %.3g, bound %.3g, converged %v",
 		evals, calls, e.Value-want, e.ErrBound, e.Converged)
 }
+
+// FuzzOccupiedStaircase: for any few levels (energies within ±60 kT of E_F,
+// degeneracies 0–3) the results match Σ g f(E_l) and Σ g (−∂f/∂E)(E_l)
+// within the reported bounds (definition of the Stieltjes sums).
+func FuzzOccupiedStaircase(f *testing.F) {
+	f.Add([]byte{128, 1, 10, 2, 250, 3}, uint16(300))
+	f.Add([]byte{0, 3, 255, 3, 128, 0}, uint16(4))
+	f.Fuzz(func(t *testing.T, data []byte, tempK uint16) {
+		if tempK == 0 || len(data) > 16 {
+			return
+		}
+		const ef = 0.2
+		kT := KT(float64(tempK))
+		var levels, jumps []float64
+		// Levels beyond the ±40 kT window are dropped by design; each
+		// carries a weight below e^(−40) (Occupied) or e^(−40)/kT (Slope).
+		var wantN, wantS, outside float64
+		for i := 0; i+1 < len(data); i += 2 {
+			e := ef + (float64(data[i])-127.5)/127.5*60*kT
+			g := float64(data[i+1] % 4)
+			levels, jumps = append(levels, e), append(jumps, g)
+			wantN += g * FermiDirac(e, ef, kT)
+			wantS += g * Kernel(e, ef, kT)
+			outside += g * math.Exp(-DefaultWindowKT)
+		}
+		c := newStaircase(levels, jumps).curve
+		o, err := Integrator{}.Occupied(context.Background(), c, ef, kT)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if d := math.Abs(o.Value - wantN); d > o.ErrBound+outside+1e-14*(1+wantN) {
+			t.Errorf("Occupied %.17g ± %g, exact %.17g", o.Value, o.ErrBound, wantN)
+		}
+		s, err := Integrator{}.Slope(context.Background(), c, ef, kT)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if d := math.Abs(s.Value - wantS); d > s.ErrBound+outside/kT+1e-14*(1+wantS) {
+			t.Errorf("Slope %.17g ± %g, exact %.17g", s.Value, s.ErrBound, wantS)
+		}
+	})
+}

@@ -32,7 +32,9 @@ var legendreRule = sync.OnceValues(func() (x, w []float64) {
 // (DLMF §25.12(iii), eq. 25.12.14; ℱ_j(η) = −Li_(j+1)(−e^η)). The
 // normalisation makes ℱ_j(η) → e^η for η ≪ 0 and ℱ_j(η) → η^(j+1)/Γ(j+2)
 // for η ≫ 0. It is accurate to about 1e-14 relative for η in [−700, 10⁶]
-// and j in (−1, 10]; the work grows like log η for large η.
+// and j in (−1, 10] (tested against series, closed forms and asymptotics
+// for η from −50 to 10⁴); the work, about 1 000 integrand evaluations,
+// grows like log η for large η.
 //
 // The integral is split into panels integrated with gonum's Gauss–Legendre
 // rule: panels graded geometrically towards t = 0 (so the t^j singularity

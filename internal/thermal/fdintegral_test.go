@@ -127,7 +127,7 @@ func TestFermiDiracIntegralNonDegenerate(t *testing.T) {
 // next term, (7π⁴/360)·(j+1)j(j−1)(j−2)/η⁴, is below 1e-6 at η = 50.
 func TestFermiDiracIntegralDegenerate(t *testing.T) {
 	for _, j := range []float64{-0.5, 0.5, 1.5} {
-		for _, eta := range []float64{50, 200} {
+		for _, eta := range []float64{50, 200, 1e4} {
 			t.Run(fmt.Sprintf("j=%g/eta=%g", j, eta), func(t *testing.T) {
 				got := FermiDiracIntegral(j, eta)
 				lead := math.Pow(eta, j+1) / math.Gamma(j+2)

@@ -168,6 +168,7 @@ func TestSiliconEffectiveDensityOfStates(t *testing.T) {
 		t.Fatal(err)
 	}
 	nc := n * 1e-6 / math.Exp(eta) // cm⁻³
+	t.Logf("N_c = %.4g cm⁻³", nc)
 	if relErr(nc, 2.8e19) > 0.03 {
 		t.Errorf("N_c = %.4g cm⁻³ (± %.2g), want 2.8e19 within 3%%", nc, bound*1e-6/math.Exp(eta))
 	}

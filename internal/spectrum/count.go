@@ -79,6 +79,48 @@ type class struct {
 	e []float64
 }
 
+// columnList is the merged, sorted list of the inner two axes' energies with
+// the running total of their weights: N₂(x) = cum[upper(e, x) − 1].
+type columnList struct {
+	e   []float64
+	cum []float64 // nil when every weight is 1 (N₂ is the index)
+}
+
+func (c *columnList) count(x float64) float64 {
+	i := upper(c.e, x)
+	if c.cum == nil || i == 0 {
+		return float64(i)
+	}
+	return c.cum[i-1]
+}
+
+// merge combines the weight classes into one sorted list.
+func merge(classes []class) columnList {
+	if len(classes) == 1 && classes[0].w == 1 {
+		return columnList{e: classes[0].e}
+	}
+	total := 0
+	for _, c := range classes {
+		total += len(c.e)
+	}
+	out := columnList{e: make([]float64, 0, total), cum: make([]float64, 0, total)}
+	pos := make([]int, len(classes))
+	var run float64
+	for len(out.e) < total {
+		best := -1
+		for i, c := range classes {
+			if pos[i] < len(c.e) && (best < 0 || c.e[pos[i]] < classes[best].e[pos[best]]) {
+				best = i
+			}
+		}
+		run += classes[best].w
+		out.e = append(out.e, classes[best].e[pos[best]])
+		out.cum = append(out.cum, run)
+		pos[best]++
+	}
+	return out
+}
+
 // valleyCounter counts one valley's states.
 type valleyCounter struct {
 	weight float64  // g_s·g_v
@@ -88,6 +130,7 @@ type valleyCounter struct {
 	// sorted once, by weight class, so that N₃(γ) = Σₙ w_n N₂(γ − εₙ) costs
 	// one binary search per outer level.
 	classes []class
+	list    columnList
 }
 
 // Counter counts the states of one conductor at energies up to the cap it
@@ -130,6 +173,7 @@ func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, err
 				return nil, err
 			}
 			vc.classes = cl
+			vc.list = merge(cl)
 		}
 		k.valleys = append(k.valleys, vc)
 	}
@@ -200,12 +244,7 @@ func (v *valleyCounter) count(g0 float64) float64 {
 	case 3:
 		a := v.conf[0]
 		for n := a.first(); n <= a.top(g); n++ {
-			r := g - a.q*float64(n)*float64(n)
-			var s2 float64
-			for _, c := range v.classes {
-				s2 += c.w * float64(upper(c.e, r))
-			}
-			s += a.weight(n) * s2
+			s += a.weight(n) * v.list.count(g-a.q*float64(n)*float64(n))
 		}
 	}
 	return v.weight * s

@@ -38,10 +38,10 @@ func benchRun(b *testing.B, s Scenario) {
 	b.ReportMetric(states, "states")
 }
 
-func BenchmarkCube1e7(b *testing.B)      { benchRun(b, cube(b, 50, "0")) }
-func BenchmarkCube1e7Warm(b *testing.B)  { benchRun(b, cube(b, 50, "300")) }
-func BenchmarkCube1e9(b *testing.B)      { benchRun(b, cube(b, 230, "0")) }
-func BenchmarkCube1e9Warm(b *testing.B)  { benchRun(b, cube(b, 230, "300")) }
+func BenchmarkCube1e7(b *testing.B)     { benchRun(b, cube(b, 50, "0")) }
+func BenchmarkCube1e7Warm(b *testing.B) { benchRun(b, cube(b, 50, "300")) }
+func BenchmarkCube1e9(b *testing.B)     { benchRun(b, cube(b, 230, "0")) }
+func BenchmarkCube1e9Warm(b *testing.B) { benchRun(b, cube(b, 230, "300")) }
 func BenchmarkWire10x10x100(b *testing.B) {
 	q, _ := url.ParseQuery("material=gaas&lx=10nm&ly=10nm&lz=100nm")
 	s, _ := Parse(q)

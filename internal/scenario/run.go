@@ -81,7 +81,7 @@ type source struct {
 	states  *spectrum.Counter // nil: asymptotic (Weyl)
 	modes   *spectrum.Counter // nil: asymptotic (Weyl modes)
 	along   int
-	smooth  bool // the continuum: analytic throughout
+	smooth  bool    // the continuum: analytic throughout
 	evalOps float64 // cost of one N(E) evaluation
 	// dosAt memoises D(E) at every energy the run needs: broadening a big
 	// confined conductor bins all its levels, so it is done once.

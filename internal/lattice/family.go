@@ -30,10 +30,11 @@ type FamilyPoint struct {
 
 // Ranges of familyAround.
 const (
-	familyLinesHalf  = 100 // N within ±100 of the request
-	familyZigzagStep = 5   // zigzag ribbons: every 5th N (each costs one solve)
-	familyDiamHalfNM = 1.0 // tubes within ±1 nm of the requested diameter
-	familyMinDiamNM  = 0.3 // and not thinner than the thinnest tubes made
+	familyLinesHalf   = 100 // N within ±100 of the request
+	familyZigzagStep  = 5   // zigzag ribbons: every 5th N (each costs one solve)
+	familyDiamHalfNM  = 1.0 // tubes within ±1 nm of the requested diameter
+	familyMinDiamNM   = 0.3 // and not thinner than the thinnest tubes made
+	familyDiamAreaNM2 = 5.0 // but within ±5 nm²/d for thick tubes
 )
 
 // Family returns the gap of every ribbon of p's kind with lines in
@@ -104,8 +105,11 @@ func familyAround(ctx context.Context, p Params) (FamilyView, error) {
 	case Zigzag:
 		return Family(ctx, p, max(1, p.Lines-familyLinesHalf), min(MaxLines, p.Lines+familyLinesHalf), familyZigzagStep, 0, 0)
 	}
+	// The number of tubes in a diameter range grows as d·Δd; narrowing the
+	// range for thick tubes keeps it near a thousand.
 	d := TubeDiameterNM(p.N, p.M, p.AccNM)
-	return Family(ctx, p, 0, 0, 0, math.Max(familyMinDiamNM, d-familyDiamHalfNM), d+familyDiamHalfNM)
+	half := math.Min(familyDiamHalfNM, familyDiamAreaNM2/d)
+	return Family(ctx, p, 0, 0, 0, math.Max(familyMinDiamNM, d-half), d+half)
 }
 
 // ArmchairGapEV is the gap of the armchair ribbon of nLines dimer lines:

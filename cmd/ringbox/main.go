@@ -35,6 +35,10 @@ const usage = `usage: ringbox COMMAND [flags]
 commands:
   serve      run the web app (default http://127.0.0.1:8080)
   count      count states and modes of one conductor
+  sweep      sweep a length and find the crossover to the bulk
+  lattice    graphene ribbons and nanotubes (tight binding)
+  backup     copy the review database consistently
+  validate   run the published checks
   materials  list the material catalogue
 Run "ringbox COMMAND --help" for a command's flags.
 `
@@ -58,7 +62,9 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	return 2
 }
 
-var commands = map[string]func(context.Context, []string, io.Writer, io.Writer) int{
+// commands maps each subcommand to its function. Subcommands in other files
+// of this package add themselves from init.
+var commands = map[string]func(ctx context.Context, args []string, stdout, stderr io.Writer) int{
 	"count":     countCmd,
 	"materials": materialsCmd,
 	"serve":     serveCmd,

@@ -224,30 +224,82 @@ func (v *valleyCounter) count(g0 float64) float64 {
 		case 2:
 			s = math.Max(v.open.pref*(l.count(g)*g0-l.q*l.sumSq(g)), 0)
 		default:
-			for n := l.first(); n <= l.top(g); n++ {
+			for n, top := l.first(), l.top(g); n <= top; n++ {
 				s += l.weight(n) * v.open.at(g0-l.q*float64(n)*float64(n))
 			}
 		}
 	case 2:
 		a, b := v.conf[0], v.conf[1]
-		for n := a.first(); n <= a.top(g); n++ {
+		for n, top := a.first(), a.top(g); n <= top; n++ {
 			r := g - a.q*float64(n)*float64(n)
 			if v.open.dim == 0 {
 				s += a.weight(n) * b.count(r)
 				continue
 			}
 			r0 := g0 - a.q*float64(n)*float64(n)
-			for m := b.first(); m <= b.top(r); m++ {
+			for m, topm := b.first(), b.top(r); m <= topm; m++ {
 				s += a.weight(n) * b.weight(m) * v.open.at(r0-b.q*float64(m)*float64(m))
 			}
 		}
 	case 3:
 		a := v.conf[0]
-		for n := a.first(); n <= a.top(g); n++ {
+		for n, top := a.first(), a.top(g); n <= top; n++ {
 			s += a.weight(n) * v.list.count(g-a.q*float64(n)*float64(n))
 		}
 	}
 	return v.weight * s
+}
+
+// countAscending is count for ascending energies of a three-confined-axis
+// valley: for each outer level the position in the column list only moves
+// up as the energy grows, so it gallops on from where the last energy left
+// it instead of searching the whole list again.
+func (v *valleyCounter) countAscending(gs, out []float64) {
+	a := v.conf[0]
+	e := v.list.e
+	hint := make([]int, a.top(v.list.topGamma(gs))+2)
+	for i, g0 := range gs {
+		if g0 < 0 {
+			continue
+		}
+		g := g0 * (1 + tieRel)
+		var s float64
+		for n, top := a.first(), a.top(g); n <= top; n++ {
+			x := g - a.q*float64(n)*float64(n)
+			j := gallop(e, x, hint[n])
+			hint[n] = j
+			var c float64
+			switch {
+			case j == 0:
+			case v.list.cum == nil:
+				c = float64(j)
+			default:
+				c = v.list.cum[j-1]
+			}
+			s += a.weight(n) * c
+		}
+		out[i] += v.weight * s
+	}
+}
+
+func (c *columnList) topGamma(gs []float64) float64 {
+	return math.Max(gs[len(gs)-1], 0) * (1 + tieRel)
+}
+
+// gallop returns upper(e, x) given that the answer is at least from.
+func gallop(e []float64, x float64, from int) int {
+	if from >= len(e) || e[from] > x {
+		return from
+	}
+	step := 1
+	lo, hi := from, from+1 // e[lo] ≤ x
+	for hi < len(e) && e[hi] <= x {
+		lo = hi
+		step *= 2
+		hi = lo + step
+	}
+	hi = min(hi, len(e))
+	return lo + 1 + upper(e[lo+1:hi], x)
 }
 
 // upper returns the number of elements of the sorted e that are ≤ x.
@@ -298,7 +350,64 @@ func (v *valleyCounter) slope(g float64) float64 {
 // included), for each energy (eV) into out. Energies above the cap the
 // Counter was built for panic.
 func (k *Counter) States(ctx context.Context, energiesEV, out []float64) error {
+	if k.ascendingColumns(energiesEV) {
+		return k.eachAscending(ctx, energiesEV, out)
+	}
 	return k.each(ctx, energiesEV, out, func(v *valleyCounter, g float64) float64 { return v.count(g) })
+}
+
+// ascendingColumns reports whether the galloping batch path applies.
+func (k *Counter) ascendingColumns(energiesEV []float64) bool {
+	if len(energiesEV) < 8 {
+		return false
+	}
+	for _, v := range k.valleys {
+		if len(v.conf) != 3 {
+			return false
+		}
+	}
+	for i := 1; i < len(energiesEV); i++ {
+		if energiesEV[i] < energiesEV[i-1] {
+			return false
+		}
+	}
+	return true
+}
+
+// eachAscending splits ascending energies into contiguous chunks, one
+// galloping walk per chunk and valley.
+func (k *Counter) eachAscending(ctx context.Context, energiesEV, out []float64) error {
+	if len(out) != len(energiesEV) {
+		panic("spectrum: output length differs from input")
+	}
+	gam := make([]float64, len(energiesEV))
+	for i, e := range energiesEV {
+		gam[i] = Gamma(e, k.c.AlphaPerEV)
+		if gam[i] > k.gammaMax {
+			panic("spectrum: energy above the counter's cap")
+		}
+		out[i] = 0
+	}
+	workers := runtime.GOMAXPROCS(0)
+	// The cost of an energy grows with it; chunks of equal cost would be
+	// better, equal counts of 4 per worker are close enough.
+	chunks := min(4*workers, len(gam))
+	size := (len(gam) + chunks - 1) / chunks
+	var g errgroup.Group
+	g.SetLimit(workers)
+	for lo := 0; lo < len(gam); lo += size {
+		lo, hi := lo, min(lo+size, len(gam))
+		g.Go(func() error {
+			if ctx.Err() != nil {
+				return ctx.Err()
+			}
+			for vi := range k.valleys {
+				k.valleys[vi].countAscending(gam[lo:hi], out[lo:hi])
+			}
+			return nil
+		})
+	}
+	return g.Wait()
 }
 
 // DensityOfStates writes the analytic D(E) = dN/dE in states per eV where at

@@ -43,8 +43,18 @@ func Levels(c Conductor, max int) []Level {
 		if len(lad) == 0 {
 			return nil
 		}
-		// The max-th lowest level lies at or below ε_i(first+max) for every
-		// axis i, so n ≤ first+max on each axis is enough.
+		// The max-th lowest level lies at or below ε_i(first+max) + Σ_{j≠i}
+		// ε_j(first) for every axis i: walk only below that bound.
+		bound := math.Inf(1)
+		var base float64
+		for _, l := range lad {
+			base += l.q * float64(l.first()*l.first())
+		}
+		for _, l := range lad {
+			n := float64(l.first() + max)
+			bound = math.Min(bound, base-l.q*float64(l.first()*l.first())+l.q*n*n)
+		}
+		bound *= 1 + 1e-9
 		idx := make([]int, len(lad))
 		var walk func(d int, g float64)
 		walk = func(d int, g float64) {
@@ -56,10 +66,19 @@ func Levels(c Conductor, max int) []Level {
 				all = append(all, state{g: g, w: w, valley: v.Label, n: append([]int(nil), idx...)})
 				return
 			}
+			// The rest of the axes add at least their lowest levels.
+			var rest float64
+			for _, l := range lad[d+1:] {
+				rest += l.q * float64(l.first()*l.first())
+			}
 			l := lad[d]
 			for n := l.first(); n <= l.first()+max; n++ {
+				e := g + l.q*float64(n)*float64(n)
+				if e+rest > bound {
+					break
+				}
 				idx[d] = n
-				walk(d+1, g+l.q*float64(n)*float64(n))
+				walk(d+1, e)
 			}
 		}
 		walk(0, 0)

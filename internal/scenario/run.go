@@ -259,6 +259,70 @@ func Run(ctx context.Context, s Scenario) (*Result, error) {
 	return res, nil
 }
 
+// Point is what a sweep needs of one scenario: the observables at (E_F, T)
+// and the states and modes at E_F, for every variant.
+type Point struct {
+	EFEV        float64                `json:"ef_eV"`
+	Method      string                 `json:"method"`
+	States      map[string]float64     `json:"states"`
+	Modes       map[string]float64     `json:"modes"`
+	Observables map[string]Observables `json:"observables"`
+}
+
+// Observe computes only what a sweep reads: no curves, no levels. The
+// counters cover just the thermal window around E_F.
+func Observe(ctx context.Context, s Scenario) (*Point, error) {
+	c := s.Conductor()
+	kT := s.KTEV()
+	conds := map[string]spectrum.Conductor{
+		"scenario":  c,
+		"box":       c.WithBC(spectrum.Box),
+		"ring":      c.WithBC(spectrum.Ring),
+		"continuum": c.Continuum(),
+	}
+	ef := s.EFEV
+	top := ef + (thermal.DefaultWindowKT+1)*kT
+	if s.HasDensity {
+		var err error
+		if ef, err = continuumFermiLevel(ctx, s, conds["continuum"]); err != nil {
+			return nil, err
+		}
+		top = 1.5*ef + 0.05 + 2*(thermal.DefaultWindowKT+1)*kT
+	}
+	top = math.Max(top, 1e-3)
+	s.Points = 1
+	s.AtEV = nil
+	srcs, method, err := build(ctx, s, conds, top)
+	if err != nil {
+		return nil, err
+	}
+	if s.HasDensity {
+		if ef, err = solveFermiLevel(ctx, s, srcs["scenario"], top-(thermal.DefaultWindowKT+1)*kT); err != nil {
+			return nil, err
+		}
+	}
+	p := &Point{EFEV: ef, Method: method, States: map[string]float64{}, Modes: map[string]float64{}, Observables: map[string]Observables{}}
+	for _, name := range Variants {
+		src := srcs[name]
+		v := []float64{ef}
+		if err := src.stateCurve(ctx, v, v); err != nil {
+			return nil, canceled(err)
+		}
+		p.States[name] = v[0]
+		v[0] = ef
+		if err := src.modeCurve(ctx, v, v); err != nil {
+			return nil, canceled(err)
+		}
+		p.Modes[name] = v[0]
+		o, err := observe(ctx, s, src, ef)
+		if err != nil {
+			return nil, err
+		}
+		p.Observables[name] = o
+	}
+	return p, nil
+}
+
 // meanDensity returns the smooth density of states at e (per eV) from the
 // scenario's Weyl count: the mean over the staircase.
 func (v *source) meanDensity(_ context.Context, e float64) (float64, error) {

@@ -187,3 +187,36 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+// TestObserveMatchesRun: the lean sweep path gives the numbers of a full run.
+func TestObserveMatchesRun(t *testing.T) {
+	for _, raw := range []string{
+		"material=gaas&lx=12nm&ly=15nm&lz=200nm&temp=77&ef=0.08",
+		"material=si&dims=3&lx=5nm&ly=1um&lz=1um&by=open&bz=open&temp=300&density=1e12",
+		"material=cu&dims=3&lx=6nm&ly=7nm&lz=8nm&bz=box&temp=0",
+	} {
+		q, _ := url.ParseQuery(raw)
+		s, err := Parse(q)
+		if err != nil {
+			t.Fatal(err)
+		}
+		full, err := Run(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p, err := Observe(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs(p.EFEV-full.EFEV) > 1e-9 {
+			t.Errorf("%s: E_F %g vs %g", raw, p.EFEV, full.EFEV)
+		}
+		for _, v := range Variants {
+			a, b := p.Observables[v], full.Observables[v]
+			if math.Abs(a.Electrons-b.Electrons) > 1e-6*math.Max(1, b.Electrons) ||
+				math.Abs(a.ConductanceS-b.ConductanceS) > 1e-6*b.ConductanceS {
+				t.Errorf("%s %s: %+v vs %+v", raw, v, a, b)
+			}
+		}
+	}
+}

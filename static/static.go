@@ -13,6 +13,7 @@ import (
 	"io/fs"
 	"mime"
 	"path"
+	"sync"
 )
 
 //go:embed *.css *.js *.svg
@@ -26,8 +27,9 @@ type Asset struct {
 	ContentType string
 }
 
-// assets is built once at start-up; the files never change while running.
-var assets = func() map[string]Asset {
+// assets is built once, on first use (not at start-up, so command-line runs
+// that serve nothing do not hash the files); they never change while running.
+var assets = sync.OnceValue(func() map[string]Asset {
 	entries, err := fs.ReadDir(files, ".")
 	if err != nil {
 		panic("static: " + err.Error())
@@ -46,12 +48,12 @@ var assets = func() map[string]Asset {
 		m[e.Name()] = Asset{Name: e.Name(), Content: b, Version: hex.EncodeToString(sum[:])[:12], ContentType: ct}
 	}
 	return m
-}()
+})
 
 // Lookup returns the asset called name (a bare file name such as
 // "ringbox.css") and whether it exists.
 func Lookup(name string) (Asset, bool) {
-	a, ok := assets[name]
+	a, ok := assets()[name]
 	return a, ok
 }
 
@@ -59,7 +61,7 @@ func Lookup(name string) (Asset, bool) {
 // on a name that is not embedded: templates name their assets literally, so
 // a miss is a programming error caught by the first render in any test.
 func Path(name string) string {
-	a, ok := assets[name]
+	a, ok := assets()[name]
 	if !ok {
 		panic("static: no asset " + name)
 	}

@@ -182,8 +182,25 @@ func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, err
 
 // columns lists ε_a(n_a) + ε_b(n_b) ≤ gmax, grouped by weight and sorted.
 func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
-	byWeight := map[float64][]float64{}
+	// Count first, so each class is allocated once at its final size.
 	na := a.top(gmax)
+	sizes := map[float64]int{}
+	for i := a.first(); i <= na; i++ {
+		// Weights are constant for j ≥ first+1 on either ladder.
+		nb := b.top(gmax - a.q*float64(i)*float64(i))
+		if nb < b.first() {
+			continue
+		}
+		w0 := a.weight(i) * b.weight(b.first())
+		sizes[w0]++
+		if rest := nb - b.first(); rest > 0 {
+			sizes[a.weight(i)*b.weight(b.first()+1)] += rest
+		}
+	}
+	byWeight := make(map[float64][]float64, len(sizes))
+	for w, n := range sizes {
+		byWeight[w] = make([]float64, 0, n)
+	}
 	for i := a.first(); i <= na; i++ {
 		if i%256 == 0 && ctx.Err() != nil {
 			return nil, ctx.Err()
@@ -197,11 +214,54 @@ func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
 	}
 	var out []class
 	for w, e := range byWeight {
-		slices.Sort(e)
+		bucketSort(e, gmax)
 		out = append(out, class{w: w, e: e})
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].w < out[j].w })
 	return out, nil
+}
+
+// bucketSort sorts values in [0, max] in place in O(n) expected time: the
+// column energies of two axes are spread nearly evenly in γ (the 2D density
+// of states is flat), so one bucket per value holds about one value.
+func bucketSort(e []float64, max float64) {
+	n := len(e)
+	if n < 64 || !(max > 0) {
+		slices.Sort(e)
+		return
+	}
+	start := make([]int32, n+1)
+	idx := func(x float64) int {
+		i := int(x / max * float64(n))
+		return min(max0(i), n-1)
+	}
+	for _, x := range e {
+		start[idx(x)+1]++
+	}
+	for i := 1; i <= n; i++ {
+		start[i] += start[i-1]
+	}
+	out := make([]float64, n)
+	fill := slices.Clone(start[:n])
+	for _, x := range e {
+		b := idx(x)
+		out[fill[b]] = x
+		fill[b]++
+	}
+	for b := 0; b < n; b++ {
+		lo, hi := int(start[b]), int(start[b+1])
+		if hi-lo > 1 {
+			slices.Sort(out[lo:hi])
+		}
+	}
+	copy(e, out)
+}
+
+func max0(i int) int {
+	if i < 0 {
+		return 0
+	}
+	return i
 }
 
 // count returns this valley's states with γ_state ≤ g.

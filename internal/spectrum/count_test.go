@@ -381,3 +381,56 @@ func TestBroadenedBinnedLargeBox(t *testing.T) {
 		t.Errorf("∫D = %g, ΔN = %g", integral, want)
 	}
 }
+
+func TestBucketSort(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 9))
+	for _, n := range []int{0, 1, 63, 64, 1000, 50000} {
+		e := make([]float64, n)
+		for i := range e {
+			e[i] = 7 * r.Float64() * r.Float64() // uneven on purpose
+		}
+		e = append(e, 0, 7)
+		want := append([]float64(nil), e...)
+		sort.Float64s(want)
+		bucketSort(e, 7)
+		for i := range e {
+			if e[i] != want[i] {
+				t.Fatalf("n=%d: element %d is %g, want %g", n, i, e[i], want[i])
+			}
+		}
+	}
+}
+
+// TestLevelsMatchEnumeration: the lowest levels and their degeneracies equal
+// those read off the brute-force staircase (each jump of N(E) is a level).
+func TestLevelsMatchEnumeration(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	ctx := context.Background()
+	for trial := 0; trial < 80; trial++ {
+		c := randomConductor(r)
+		if !c.Confined() {
+			continue
+		}
+		lv := Levels(c, 8)
+		if len(lv) != 8 {
+			t.Fatalf("trial %d: %d levels", trial, len(lv))
+		}
+		k, _ := NewCounter(ctx, c, lv[7].EnergyEV*1.01)
+		for i, l := range lv {
+			below := l.EnergyEV*(1-1e-10) - 1e-15
+			n := []float64{0, 0}
+			_ = k.States(ctx, []float64{below, l.EnergyEV}, n)
+			if int(n[1]-n[0]) != l.Degeneracy {
+				t.Errorf("trial %d level %d at %g: jump %g, degeneracy %d", trial, i, l.EnergyEV, n[1]-n[0], l.Degeneracy)
+			}
+			if i > 0 {
+				// No level hides between two listed ones.
+				mid := []float64{lv[i-1].EnergyEV, below}
+				_ = k.States(ctx, mid, mid)
+				if mid[1] != mid[0] {
+					t.Errorf("trial %d: states between levels %d and %d", trial, i-1, i)
+				}
+			}
+		}
+	}
+}

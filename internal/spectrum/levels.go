@@ -26,62 +26,19 @@ func Levels(c Conductor, max int) []Level {
 	if err := c.Check(); err != nil {
 		panic(err.Error())
 	}
-	type state struct {
-		g      float64
-		w      int
-		valley string
-		n      []int
-	}
+	// Enumerate below a growing fraction of a safe bound: the states
+	// inside grow like the fraction^(d/2), so the first tries are cheap, and
+	// a try that finds more than max distinct levels has all states of the
+	// lowest max levels.
 	var all []state
-	for _, v := range c.Valleys {
-		var lad []ladder
-		for i, a := range c.Axes {
-			if a.BC != Open {
-				lad = append(lad, ladder{q: quantumEV(a, v.MassM0[i]), ring: a.BC == Ring})
-			}
-		}
-		if len(lad) == 0 {
+	for _, frac := range []float64{1.0 / 64, 1.0 / 16, 1.0 / 4, 1} {
+		all = all[:0]
+		if !enumerateLevels(c, max, frac, func(st state) { all = append(all, st) }) {
 			return nil
 		}
-		// The max-th lowest level lies at or below ε_i(first+max) + Σ_{j≠i}
-		// ε_j(first) for every axis i: walk only below that bound.
-		bound := math.Inf(1)
-		var base float64
-		for _, l := range lad {
-			base += l.q * float64(l.first()*l.first())
+		if frac == 1 || distinct(all) > max {
+			break
 		}
-		for _, l := range lad {
-			n := float64(l.first() + max)
-			bound = math.Min(bound, base-l.q*float64(l.first()*l.first())+l.q*n*n)
-		}
-		bound *= 1 + 1e-9
-		idx := make([]int, len(lad))
-		var walk func(d int, g float64)
-		walk = func(d int, g float64) {
-			if d == len(lad) {
-				w := v.Degeneracy * c.SpinDegeneracy
-				for i, l := range lad {
-					w *= int(l.weight(idx[i]))
-				}
-				all = append(all, state{g: g, w: w, valley: v.Label, n: append([]int(nil), idx...)})
-				return
-			}
-			// The rest of the axes add at least their lowest levels.
-			var rest float64
-			for _, l := range lad[d+1:] {
-				rest += l.q * float64(l.first()*l.first())
-			}
-			l := lad[d]
-			for n := l.first(); n <= l.first()+max; n++ {
-				e := g + l.q*float64(n)*float64(n)
-				if e+rest > bound {
-					break
-				}
-				idx[d] = n
-				walk(d+1, e)
-			}
-		}
-		walk(0, 0)
 	}
 	// Sort small keys, not the states: ties keep enumeration order.
 	type key struct {
@@ -344,4 +301,95 @@ func (k *Counter) binnedColumns(ctx context.Context, lo, hi, etaEV float64, add 
 		}
 	}
 	return used, nil
+}
+
+// state is one lattice point of the confined axes with its weight.
+type state struct {
+	g      float64
+	w      int
+	valley string
+	n      []int
+}
+
+// distinct counts the energies of states that differ by more than 1e-9 relative.
+func distinct(all []state) int {
+	g := make([]float64, len(all))
+	for i, s := range all {
+		g[i] = s.g
+	}
+	slices.Sort(g)
+	n := 0
+	for i := range g {
+		if i == 0 || g[i]-g[i-1] > 1e-9*math.Abs(g[i]) {
+			n++
+		}
+	}
+	return n
+}
+
+// enumerateLevels calls emit for every state with γ below base + frac·(bound
+// − base), where bound is an energy at or above the max-th lowest level. It
+// reports false when the conductor has no confined axis.
+func enumerateLevels(c Conductor, max int, frac float64, emit func(state)) bool {
+	ladders := func(v Valley) []ladder {
+		var lad []ladder
+		for i, a := range c.Axes {
+			if a.BC != Open {
+				lad = append(lad, ladder{q: quantumEV(a, v.MassM0[i]), ring: a.BC == Ring})
+			}
+		}
+		return lad
+	}
+	lowest := func(lad []ladder) float64 {
+		var b float64
+		for _, l := range lad {
+			b += l.q * float64(l.first()*l.first())
+		}
+		return b
+	}
+	// One cutoff for every valley: the max-th lowest level of the whole
+	// conductor lies at or below each valley's own ε_i(first+max) + Σ_{j≠i}
+	// ε_j(first).
+	base, bound := math.Inf(1), math.Inf(1)
+	for _, v := range c.Valleys {
+		lad := ladders(v)
+		if len(lad) == 0 {
+			return false
+		}
+		b := lowest(lad)
+		base = math.Min(base, b)
+		for _, l := range lad {
+			n := float64(l.first() + max)
+			bound = math.Min(bound, b-l.q*float64(l.first()*l.first())+l.q*n*n)
+		}
+	}
+	cut := (base + frac*(bound-base)) * (1 + 1e-9)
+	for _, v := range c.Valleys {
+		lad := ladders(v)
+		idx := make([]int, len(lad))
+		var walk func(d int, g float64)
+		walk = func(d int, g float64) {
+			if d == len(lad) {
+				w := v.Degeneracy * c.SpinDegeneracy
+				for i, l := range lad {
+					w *= int(l.weight(idx[i]))
+				}
+				emit(state{g: g, w: w, valley: v.Label, n: append([]int(nil), idx...)})
+				return
+			}
+			// The rest of the axes add at least their lowest levels.
+			rest := lowest(lad[d+1:])
+			l := lad[d]
+			for n := l.first(); ; n++ {
+				e := g + l.q*float64(n)*float64(n)
+				if e+rest > cut {
+					break
+				}
+				idx[d] = n
+				walk(d+1, e)
+			}
+		}
+		walk(0, 0)
+	}
+	return true
 }

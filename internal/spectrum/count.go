@@ -80,14 +80,56 @@ type class struct {
 }
 
 // columnList is the merged, sorted list of the inner two axes' energies with
-// the running total of their weights: N₂(x) = cum[upper(e, x) − 1].
+// the running total of their weights: N₂(x) = cum[upper(e, x) − 1]. A bucket
+// index over [0, max] (about one entry per bucket, since the energies are
+// spread nearly evenly) finds upper(e, x) in O(1): the bucket's first entry,
+// then a step or two.
 type columnList struct {
-	e   []float64
-	cum []float64 // nil when every weight is 1 (N₂ is the index)
+	e      []float64
+	cum    []float64 // nil when every weight is 1 (N₂ is the index)
+	bucket []int32   // bucket[b] = number of entries below b/scale
+	scale  float64
+}
+
+func (c *columnList) index() {
+	n := len(c.e)
+	if n == 0 {
+		return
+	}
+	top := c.e[n-1]
+	if !(top > 0) {
+		top = 1
+	}
+	c.scale = float64(n) / top
+	c.bucket = make([]int32, n+2)
+	j := 0
+	for b := range c.bucket {
+		lim := float64(b) / c.scale
+		for j < n && c.e[j] < lim {
+			j++
+		}
+		c.bucket[b] = int32(j)
+	}
+}
+
+// upper returns the number of entries ≤ x.
+func (c *columnList) upper(x float64) int {
+	if x < 0 || len(c.e) == 0 {
+		return 0
+	}
+	b := int(x * c.scale)
+	if b >= len(c.bucket)-1 {
+		return len(c.e)
+	}
+	i := int(c.bucket[b])
+	for i < len(c.e) && c.e[i] <= x {
+		i++
+	}
+	return i
 }
 
 func (c *columnList) count(x float64) float64 {
-	i := upper(c.e, x)
+	i := c.upper(x)
 	if c.cum == nil || i == 0 {
 		return float64(i)
 	}
@@ -174,6 +216,7 @@ func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, err
 			}
 			vc.classes = cl
 			vc.list = merge(cl)
+			vc.list.index()
 		}
 		k.valleys = append(k.valleys, vc)
 	}
@@ -310,14 +353,10 @@ func (v *valleyCounter) count(g0 float64) float64 {
 	return v.weight * s
 }
 
-// countAscending is count for ascending energies of a three-confined-axis
-// valley: for each outer level the position in the column list only moves
-// up as the energy grows, so it gallops on from where the last energy left
-// it instead of searching the whole list again.
+// countAscending is count for a batch of energies of a three-confined-axis
+// valley, accumulated into out.
 func (v *valleyCounter) countAscending(gs, out []float64) {
 	a := v.conf[0]
-	e := v.list.e
-	hint := make([]int, a.top(v.list.topGamma(gs))+2)
 	for i, g0 := range gs {
 		if g0 < 0 {
 			continue
@@ -325,55 +364,10 @@ func (v *valleyCounter) countAscending(gs, out []float64) {
 		g := g0 * (1 + tieRel)
 		var s float64
 		for n, top := a.first(), a.top(g); n <= top; n++ {
-			x := g - a.q*float64(n)*float64(n)
-			j := gallop(e, x, hint[n])
-			hint[n] = j
-			var c float64
-			switch {
-			case j == 0:
-			case v.list.cum == nil:
-				c = float64(j)
-			default:
-				c = v.list.cum[j-1]
-			}
-			s += a.weight(n) * c
+			s += a.weight(n) * v.list.count(g-a.q*float64(n)*float64(n))
 		}
 		out[i] += v.weight * s
 	}
-}
-
-func (c *columnList) topGamma(gs []float64) float64 {
-	return math.Max(gs[len(gs)-1], 0) * (1 + tieRel)
-}
-
-// gallop returns upper(e, x) given that the answer is at least from.
-func gallop(e []float64, x float64, from int) int {
-	if from >= len(e) || e[from] > x {
-		return from
-	}
-	step := 1
-	lo, hi := from, from+1 // e[lo] ≤ x
-	for hi < len(e) && e[hi] <= x {
-		lo = hi
-		step *= 2
-		hi = lo + step
-	}
-	hi = min(hi, len(e))
-	return lo + 1 + upper(e[lo+1:hi], x)
-}
-
-// upper returns the number of elements of the sorted e that are ≤ x.
-func upper(e []float64, x float64) int {
-	i, j := 0, len(e)
-	for i < j {
-		h := int(uint(i+j) >> 1)
-		if e[h] <= x {
-			i = h + 1
-		} else {
-			j = h
-		}
-	}
-	return i
 }
 
 // slope returns this valley's dN/dγ where an axis is open (0 otherwise).

@@ -5,7 +5,6 @@ import (
 	"math"
 	"runtime"
 	"slices"
-	"sort"
 
 	"golang.org/x/sync/errgroup"
 
@@ -102,13 +101,14 @@ func (c *columnList) index() {
 	}
 	c.scale = float64(n) / top
 	c.bucket = make([]int32, n+2)
-	j := 0
-	for b := range c.bucket {
-		lim := float64(b) / c.scale
-		for j < n && c.e[j] < lim {
-			j++
+	// bucket[b] counts the entries with x·scale < b, i.e. in buckets below b.
+	for _, x := range c.e {
+		if b := int(x*c.scale) + 1; b < len(c.bucket) {
+			c.bucket[b]++
 		}
-		c.bucket[b] = int32(j)
+	}
+	for b := 1; b < len(c.bucket); b++ {
+		c.bucket[b] += c.bucket[b-1]
 	}
 }
 
@@ -225,24 +225,25 @@ func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, err
 
 // columns lists ε_a(n_a) + ε_b(n_b) ≤ gmax, grouped by weight and sorted.
 func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
-	// Count first, so each class is allocated once at its final size.
+	// Weights are a.weight(i)·b.weight(j) ∈ {1, 2, 4}: class index by log₂.
+	cls := func(w float64) int { return int(w) / 2 }
+	// Count first, so each class is allocated once at its final size; the
+	// weights are constant for j ≥ first+1 on either ladder.
 	na := a.top(gmax)
-	sizes := map[float64]int{}
+	var sizes [3]int
 	for i := a.first(); i <= na; i++ {
-		// Weights are constant for j ≥ first+1 on either ladder.
 		nb := b.top(gmax - a.q*float64(i)*float64(i))
 		if nb < b.first() {
 			continue
 		}
-		w0 := a.weight(i) * b.weight(b.first())
-		sizes[w0]++
+		sizes[cls(a.weight(i)*b.weight(b.first()))]++
 		if rest := nb - b.first(); rest > 0 {
-			sizes[a.weight(i)*b.weight(b.first()+1)] += rest
+			sizes[cls(a.weight(i)*b.weight(b.first()+1))] += rest
 		}
 	}
-	byWeight := make(map[float64][]float64, len(sizes))
-	for w, n := range sizes {
-		byWeight[w] = make([]float64, 0, n)
+	var lists [3][]float64
+	for c, n := range sizes {
+		lists[c] = make([]float64, 0, n)
 	}
 	for i := a.first(); i <= na; i++ {
 		if i%256 == 0 && ctx.Err() != nil {
@@ -251,16 +252,18 @@ func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
 		ea := a.q * float64(i) * float64(i)
 		nb := b.top(gmax - ea)
 		for j := b.first(); j <= nb; j++ {
-			w := a.weight(i) * b.weight(j)
-			byWeight[w] = append(byWeight[w], ea+b.q*float64(j)*float64(j))
+			c := cls(a.weight(i) * b.weight(j))
+			lists[c] = append(lists[c], ea+b.q*float64(j)*float64(j))
 		}
 	}
 	var out []class
-	for w, e := range byWeight {
+	for c, e := range lists {
+		if len(e) == 0 {
+			continue
+		}
 		bucketSort(e, gmax)
-		out = append(out, class{w: w, e: e})
+		out = append(out, class{w: [3]float64{1, 2, 4}[c], e: e})
 	}
-	sort.Slice(out, func(i, j int) bool { return out[i].w < out[j].w })
 	return out, nil
 }
 

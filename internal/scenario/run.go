@@ -157,6 +157,16 @@ func (v *source) dos(ctx context.Context, s Scenario, es []float64) ([]float64, 
 	return out, nil
 }
 
+// variants returns the conductor under each name of Variants.
+func variants(c spectrum.Conductor) map[string]spectrum.Conductor {
+	return map[string]spectrum.Conductor{
+		"scenario":  c,
+		"box":       c.WithBC(spectrum.Box),
+		"ring":      c.WithBC(spectrum.Ring),
+		"continuum": c.Continuum(),
+	}
+}
+
 // Run counts the scenario: curves on the energy grid, point values, levels
 // and the observables at (E_F, T), for the scenario's own boundary
 // conditions and its box, ring and continuum variants.
@@ -164,12 +174,7 @@ func Run(ctx context.Context, s Scenario) (*Result, error) {
 	res := &Result{Scenario: flatten(s.Values()), TempK: s.TempK, s: s}
 	c := s.Conductor()
 	kT := s.KTEV()
-	conds := map[string]spectrum.Conductor{
-		"scenario":  c,
-		"box":       c.WithBC(spectrum.Box),
-		"ring":      c.WithBC(spectrum.Ring),
-		"continuum": c.Continuum(),
-	}
+	conds := variants(c)
 
 	// The highest energy anything asks for: the grid, the point values and
 	// the thermal window around E_F.
@@ -217,13 +222,15 @@ func Run(ctx context.Context, s Scenario) (*Result, error) {
 	needed := append(grid(s), at...)
 	needed = append(needed, ef)
 	seen := map[*source]bool{}
+	var g errgroup.Group
 	for _, name := range Variants {
 		if src := srcs[name]; !seen[src] {
 			seen[src] = true
-			if err := src.prepareDOS(ctx, s, needed); err != nil {
-				return nil, canceled(err)
-			}
+			g.Go(func() error { return src.prepareDOS(ctx, s, needed) })
 		}
+	}
+	if err := g.Wait(); err != nil {
+		return nil, canceled(err)
 	}
 	if err := curves(ctx, s, srcs, res); err != nil {
 		return nil, err
@@ -274,12 +281,7 @@ type Point struct {
 func Observe(ctx context.Context, s Scenario) (*Point, error) {
 	c := s.Conductor()
 	kT := s.KTEV()
-	conds := map[string]spectrum.Conductor{
-		"scenario":  c,
-		"box":       c.WithBC(spectrum.Box),
-		"ring":      c.WithBC(spectrum.Ring),
-		"continuum": c.Continuum(),
-	}
+	conds := variants(c)
 	ef := s.EFEV
 	top := ef + (thermal.DefaultWindowKT+1)*kT
 	if s.HasDensity {

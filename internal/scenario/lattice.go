@@ -71,15 +71,15 @@ func ParseLattice(q url.Values) (LatticeRequest, error) {
 		return LatticeRequest{}, Errorf("structure", "%q is not armchair, zigzag or tube", s)
 	}
 	if p.Structure == lattice.Tube {
-		if p.N, err = latticeInt(get("n"), "n", defaultLatticeN, 1, lattice.MaxTubeN); err != nil {
+		if p.N, err = integer(get("n"), "n", defaultLatticeN, 1, lattice.MaxTubeN); err != nil {
 			return LatticeRequest{}, err
 		}
-		if p.M, err = latticeInt(get("m"), "m", 0, 0, p.N); err != nil {
+		if p.M, err = integer(get("m"), "m", 0, 0, p.N); err != nil {
 			return LatticeRequest{}, err
 		}
 		p.Lines = 0
 	} else {
-		if p.Lines, err = latticeInt(get("lines"), "lines", defaultLatticeLines, 1, lattice.MaxLines); err != nil {
+		if p.Lines, err = integer(get("lines"), "lines", defaultLatticeLines, 1, lattice.MaxLines); err != nil {
 			return LatticeRequest{}, err
 		}
 		p.N, p.M = 0, 0
@@ -98,14 +98,14 @@ func ParseLattice(q url.Values) (LatticeRequest, error) {
 		}
 		p.AccNM = nm
 	}
-	if p.Gs, err = latticeInt(get("gs"), "gs", 2, 1, 2); err != nil {
+	if p.Gs, err = integer(get("gs"), "gs", 2, 1, 2); err != nil {
 		return LatticeRequest{}, err
 	}
 	e := lattice.MaxEnergyEV
 	if p.EFEV, err = latticeEnergy(get("ef"), "ef", 0, -e, e); err != nil {
 		return LatticeRequest{}, err
 	}
-	if p.TempK, err = latticeNumber(get("temp"), "temp", 300, 0, lattice.MaxTempK); err != nil {
+	if p.TempK, err = number(get("temp"), "temp", 300, 0, lattice.MaxTempK); err != nil {
 		return LatticeRequest{}, err
 	}
 	if v := get("at"); v != "" {
@@ -133,10 +133,10 @@ func ParseLattice(q url.Values) (LatticeRequest, error) {
 	if p.EMaxEV <= p.EMinEV {
 		return LatticeRequest{}, Errorf("emax", "must be above emin (%g eV)", p.EMinEV)
 	}
-	if p.Points, err = latticeInt(get("points"), "points", 600, 2, lattice.MaxPoints); err != nil {
+	if p.Points, err = integer(get("points"), "points", 600, 2, lattice.MaxPoints); err != nil {
 		return LatticeRequest{}, err
 	}
-	if p.KPoints, err = latticeInt(get("kpoints"), "kpoints", 401, lattice.MinKPoints, lattice.MaxKPoints); err != nil {
+	if p.KPoints, err = integer(get("kpoints"), "kpoints", 401, lattice.MinKPoints, lattice.MaxKPoints); err != nil {
 		return LatticeRequest{}, err
 	}
 	if p.KPoints%2 == 0 {
@@ -161,20 +161,20 @@ func (r LatticeRequest) Values() url.Values {
 	} else {
 		q.Set("lines", strconv.Itoa(p.Lines))
 	}
-	q.Set("gamma0", latticeFloat(p.Gamma0EV))
-	q.Set("acc", latticeFloat(p.AccNM))
+	q.Set("gamma0", fmtFloat(p.Gamma0EV))
+	q.Set("acc", fmtFloat(p.AccNM))
 	q.Set("gs", strconv.Itoa(p.Gs))
-	q.Set("ef", latticeFloat(p.EFEV))
-	q.Set("temp", latticeFloat(p.TempK))
+	q.Set("ef", fmtFloat(p.EFEV))
+	q.Set("temp", fmtFloat(p.TempK))
 	if len(p.AtEV) > 0 {
 		at := make([]string, len(p.AtEV))
 		for i, e := range p.AtEV {
-			at[i] = latticeFloat(e)
+			at[i] = fmtFloat(e)
 		}
 		q.Set("at", strings.Join(at, ","))
 	}
-	q.Set("emin", latticeFloat(p.EMinEV))
-	q.Set("emax", latticeFloat(p.EMaxEV))
+	q.Set("emin", fmtFloat(p.EMinEV))
+	q.Set("emax", fmtFloat(p.EMaxEV))
 	q.Set("points", strconv.Itoa(p.Points))
 	q.Set("kpoints", strconv.Itoa(p.KPoints))
 	return q
@@ -209,36 +209,6 @@ func fromLatticeError(err error) error {
 		return &Error{Code: Canceled, Msg: "lattice calculation stopped: " + err.Error()}
 	}
 	return err
-}
-
-func latticeFloat(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
-
-func latticeNumber(v, key string, def, lo, hi float64) (float64, error) {
-	if v == "" {
-		return def, nil
-	}
-	x, err := strconv.ParseFloat(v, 64)
-	if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-		return 0, Errorf(key, "%q is not a number", v)
-	}
-	if x < lo || x > hi {
-		return 0, Errorf(key, "%s out of range (%g to %g)", v, lo, hi)
-	}
-	return x, nil
-}
-
-func latticeInt(v, key string, def, lo, hi int) (int, error) {
-	if v == "" {
-		return def, nil
-	}
-	x, err := strconv.Atoi(v)
-	if err != nil {
-		return 0, Errorf(key, "%q is not a whole number", v)
-	}
-	if x < lo || x > hi {
-		return 0, Errorf(key, "%d out of range (%d to %d)", x, lo, hi)
-	}
-	return x, nil
 }
 
 func latticeEnergy(v, key string, def, lo, hi float64) (float64, error) {

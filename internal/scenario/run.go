@@ -83,28 +83,58 @@ type source struct {
 	along   int
 	smooth  bool    // the continuum: analytic throughout
 	evalOps float64 // cost of one N(E) evaluation
-	// dosAt memoises D(E) at every energy the run needs: broadening a big
-	// confined conductor bins all its levels, so it is done once.
-	dosAt map[float64]float64
+	// stateAt, modeAt and dosAt memoise N, M and D at every energy of the
+	// curves and point values: each is then one batch per variant (and
+	// broadening a big confined conductor bins all its levels only once).
+	stateAt, modeAt, dosAt map[float64]float64
 }
 
-// prepareDOS computes D at all the energies a run asks for in one pass.
-func (v *source) prepareDOS(ctx context.Context, s Scenario, es []float64) error {
+// prepare computes N, M and D at all the energies a run shows, in one
+// batch each.
+func (v *source) prepare(ctx context.Context, s Scenario, es []float64) error {
 	sorted := slices.Clone(es)
 	slices.Sort(sorted)
 	sorted = slices.Compact(sorted)
+	st := make([]float64, len(sorted))
+	if err := v.stateCurve(ctx, sorted, st); err != nil {
+		return err
+	}
+	m := make([]float64, len(sorted))
+	if err := v.modeCurve(ctx, sorted, m); err != nil {
+		return err
+	}
 	d, err := v.dos(ctx, s, sorted)
 	if err != nil {
 		return err
 	}
+	v.stateAt = make(map[float64]float64, len(sorted))
+	v.modeAt = make(map[float64]float64, len(sorted))
 	v.dosAt = make(map[float64]float64, len(sorted))
 	for i, e := range sorted {
-		v.dosAt[e] = d[i]
+		v.stateAt[e], v.modeAt[e], v.dosAt[e] = st[i], m[i], d[i]
 	}
 	return nil
 }
 
+// memo fills out from m when it holds every energy.
+func memo(m map[float64]float64, es, out []float64) bool {
+	if m == nil {
+		return false
+	}
+	for i, e := range es {
+		v, ok := m[e]
+		if !ok {
+			return false
+		}
+		out[i] = v
+	}
+	return true
+}
+
 func (v *source) stateCurve(ctx context.Context, es, out []float64) error {
+	if memo(v.stateAt, es, out) {
+		return nil
+	}
 	if v.states != nil {
 		return v.states.States(ctx, es, out)
 	}
@@ -115,6 +145,9 @@ func (v *source) stateCurve(ctx context.Context, es, out []float64) error {
 }
 
 func (v *source) modeCurve(ctx context.Context, es, out []float64) error {
+	if memo(v.modeAt, es, out) {
+		return nil
+	}
 	if v.modes != nil {
 		return v.modes.States(ctx, es, out)
 	}
@@ -127,16 +160,8 @@ func (v *source) modeCurve(ctx context.Context, es, out []float64) error {
 // dos writes D(E): analytic with an open axis, broadened otherwise.
 func (v *source) dos(ctx context.Context, s Scenario, es []float64) ([]float64, error) {
 	out := make([]float64, len(es))
-	if v.dosAt != nil {
-		hit := true
-		for i, e := range es {
-			d, ok := v.dosAt[e]
-			hit = hit && ok
-			out[i] = d
-		}
-		if hit {
-			return out, nil
-		}
+	if memo(v.dosAt, es, out) {
+		return out, nil
 	}
 	switch {
 	case v.states == nil:
@@ -226,7 +251,7 @@ func Run(ctx context.Context, s Scenario) (*Result, error) {
 	for _, name := range Variants {
 		if src := srcs[name]; !seen[src] {
 			seen[src] = true
-			g.Go(func() error { return src.prepareDOS(ctx, s, needed) })
+			g.Go(func() error { return src.prepare(ctx, s, needed) })
 		}
 	}
 	if err := g.Wait(); err != nil {

@@ -19,6 +19,7 @@ import (
 	"ringbox/internal/figure"
 	"ringbox/internal/phys"
 	"ringbox/internal/scenario"
+	"ringbox/internal/spectrum"
 	"ringbox/internal/store"
 	"ringbox/web/views"
 )
@@ -227,13 +228,21 @@ func (a *App) comparison(ctx context.Context, ss []scenario.Scenario) (views.Com
 		})
 	}
 	all := make([]facts, len(ss))
+	g, gctx := errgroup.WithContext(ctx)
+	g.SetLimit(runtime.GOMAXPROCS(0))
 	for i, s := range ss {
-		f, err := a.facts(ctx, s, res[i])
-		if err != nil {
-			return views.Comparison{}, numbered(i+1, err)
-		}
-		all[i] = f
+		g.Go(func() error {
+			f, err := a.facts(gctx, s, res[i])
+			if err != nil {
+				return numbered(i+1, err)
+			}
+			all[i] = f
+			return nil
+		})
 		cmp.Columns = append(cmp.Columns, column(i, s, canon))
+	}
+	if err := g.Wait(); err != nil {
+		return views.Comparison{}, err
 	}
 	cmp.Rows = factRows(all)
 	return cmp, nil
@@ -250,7 +259,7 @@ func column(i int, s scenario.Scenario, canon []string) views.CompareColumn {
 	}
 	return views.CompareColumn{
 		Number:    i + 1,
-		Label:     scenarioLabel(i, s),
+		Label:     scenarioDescription(i, s),
 		OpenURL:   "/?" + canon[i],
 		EditURL:   "/?" + edit.Encode(),
 		RemoveURL: compareURL(others),
@@ -293,6 +302,9 @@ func (a *App) facts(ctx context.Context, s scenario.Scenario, res *scenario.Resu
 		return facts{}, err
 	}
 	f.states, f.modes = formatCount(states), formatCount(modes)
+	if f.crossover, err = crossover(ctx, s); err != nil {
+		return facts{}, err
+	}
 	if o, ok := res.Observables["scenario"]; ok {
 		f.density = sci(o.Density) + " " + prettyUnit(o.DensityUnit)
 		f.conductanceS = phys.FormatSI(o.ConductanceS, "S", 4)
@@ -328,9 +340,107 @@ func factRows(fs []facts) []views.CompareRow {
 		row("Conductance (2e²/h)", true, one(func(f facts) string { return f.conductanceG0 })),
 	}
 	if slices.ContainsFunc(fs, func(f facts) bool { return f.crossover != "" }) {
-		rows = append(rows, row("Crossover size", true, one(func(f facts) string { return f.crossover })))
+		rows = append(rows, row(crossoverLabel, true, one(func(f facts) string { return f.crossover })))
 	}
 	return append(rows, row("Count", false, one(func(f facts) string { return f.method })))
+}
+
+// The crossover estimate: a short size sweep (scenario.RunSweep) of the
+// carrier density with every confined length scaled together, from a tenth
+// of the scenario's largest confined length to ten times it, and the
+// smallest size above which the scenario's own density stays within the
+// sweep's default tolerance of the continuum. The Sweep page gives the
+// full curve; this is one cell of a table.
+const (
+	crossoverSteps = 10
+	crossoverSpan  = 10.0
+	// crossoverWork bounds the estimate's work (Sweep.Work, an
+	// overestimate) at 1/400 of a full sweep's cap, a few tenths of a
+	// second on one core; the range is shortened to fit, and past that
+	// the cell points to the Sweep page.
+	crossoverWork = scenario.MaxSweepWork / 400
+)
+
+var crossoverLabel = fmt.Sprintf("Crossover size (density within %g %% of bulk)", 100*scenario.DefaultSweepTol)
+
+// crossovers keeps estimates by canonical scenario: a review is opened
+// again and again, and the estimate is the dearest cell of the table.
+var crossovers = newLRU[string](256)
+
+// crossover returns the formatted crossover estimate of s, "" when no
+// sweep applies (every axis open), or a short reason when the estimate
+// is not available. Only a canceled request is an error.
+func crossover(ctx context.Context, s scenario.Scenario) (string, error) {
+	key := s.Canonical()
+	if v, ok := crossovers.Get(key); ok {
+		return v, nil
+	}
+	maxL, minRatio := 0.0, 1.0
+	for i := range s.Dims {
+		if s.BC[i] != spectrum.Open {
+			maxL = math.Max(maxL, s.LengthM[i])
+		}
+	}
+	if maxL == 0 {
+		return "", nil
+	}
+	for i := range s.Dims {
+		if s.BC[i] != spectrum.Open {
+			minRatio = math.Min(minRatio, s.LengthM[i]/maxL)
+		}
+	}
+	from := math.Max(maxL/crossoverSpan, scenario.MinLengthM/minRatio*1.001)
+	to := math.Min(maxL*crossoverSpan, scenario.MaxLengthM)
+	if !(to > from) {
+		return "n/a", nil
+	}
+	q := s.Values()
+	q.Set("sweep", "all")
+	q.Set("from", nm(from))
+	q.Set("to", nm(to))
+	q.Set("steps", strconv.Itoa(crossoverSteps))
+	q.Set("quantity", "density")
+	sw, err := scenario.ParseSweep(q)
+	// Large conductors cost the most: shorten the top of the range until
+	// the estimate is cheap, keeping at least a factor of two above from.
+	for err == nil && sw.Work() > crossoverWork {
+		if to /= 2; to < 2*from {
+			err = scenario.Errorf("to", "too costly for an estimate")
+			break
+		}
+		q.Set("to", nm(to))
+		sw, err = scenario.ParseSweep(q)
+	}
+	var out string
+	if err == nil {
+		var r *scenario.SweepResult
+		if r, err = scenario.RunSweep(ctx, sw, nil); err == nil {
+			c := r.CrossoverNM["scenario"]
+			lengths := r.LengthsNM
+			switch {
+			case c == nil:
+				out = "above " + nm(lengths[len(lengths)-1]*1e-9)
+			case *c <= lengths[0]:
+				out = "at most " + nm(lengths[0]*1e-9)
+			default:
+				out = "≈ " + nm(*c*1e-9)
+			}
+		}
+	}
+	if err != nil {
+		if e, ok := scenario.AsError(err); !ok || e.Code == scenario.Canceled {
+			return "", err
+		}
+		// Not cached: a lighter load or a later build may manage it.
+		return "see the Sweep page", nil
+	}
+	crossovers.Add(key, out)
+	return out, nil
+}
+
+// nm formats a length in nanometres to three significant digits, "22.8nm".
+func nm(lengthM float64) string {
+	return strconv.FormatFloat(lengthM*1e9, 'g', 3, 64) + "nm"
 }
 
 // atFermi returns N(E_F) and M(E_F) for the scenario's own boundary
@@ -349,10 +459,31 @@ func (a *App) atFermi(ctx context.Context, s scenario.Scenario, res *scenario.Re
 	return pt.States["scenario"], pt.Modes["scenario"], nil
 }
 
-// scenarioLabel is the legend text of scenario i: its number and a short
-// description, "1: GaAs 6 nm box × 6 nm box × 1 µm open".
+// scenarioLabel is the legend text of scenario i: its number and a brief
+// description, "1: GaAs 6nm box×box×open" (lengths as "6×8nm" when they
+// differ). It must stay short: a long legend finds no free corner and is
+// put beside the plot, which narrows the data area.
 func scenarioLabel(i int, s scenario.Scenario) string {
-	return strconv.Itoa(i+1) + ": " + s.Material.Name + " " + geometry(s)
+	name, _, _ := strings.Cut(s.Material.Name, " (")
+	lengths := make([]string, s.Dims)
+	bcs := make([]string, s.Dims)
+	same := true
+	for k := range s.Dims {
+		lengths[k] = phys.FormatLength(s.LengthM[k])
+		bcs[k] = s.BC[k].String()
+		same = same && lengths[k] == lengths[0]
+	}
+	size := strings.Join(lengths, "×")
+	if same {
+		size = lengths[0]
+	}
+	return strconv.Itoa(i+1) + ": " + name + " " + size + " " + strings.Join(bcs, "×")
+}
+
+// scenarioDescription is the longer text of the list under the table:
+// the label's number, the material's full name and each axis.
+func scenarioDescription(i int, s scenario.Scenario) string {
+	return strconv.Itoa(i+1) + ": " + s.Material.Name + ", " + geometry(s)
 }
 
 // geometry is the axes of s with their lengths and boundary conditions.

@@ -333,6 +333,9 @@ func TestNoServerErrorFromInput(t *testing.T) {
 	}
 }
 
+// discard is a logger that drops everything, for benchmarks and fuzzing.
+func discard() *slog.Logger { return slog.New(slog.DiscardHandler) }
+
 // FuzzConductorQuery sends arbitrary query strings to the page and the
 // API: nothing a user types may give a 5xx (a deadline is not a user
 // error but also no crash, so 503/504 are allowed).
@@ -340,7 +343,7 @@ func FuzzConductorQuery(f *testing.F) {
 	for _, q := range nastyQueries[:20] {
 		f.Add(q)
 	}
-	a, err := New(Config{Logger: slog.New(slog.DiscardHandler)})
+	a, err := New(Config{Logger: discard()})
 	if err != nil {
 		f.Fatal(err)
 	}

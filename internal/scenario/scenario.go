@@ -323,7 +323,9 @@ func (s Scenario) Values() url.Values {
 		q.Set("gv", strconv.Itoa(s.GV))
 	}
 	q.Set("gs", strconv.Itoa(s.GS))
-	q.Set("alpha", fmtFloat(s.AlphaPerEV))
+	if s.AlphaPerEV != s.Material.AlphaPerEV || s.Material.ID == material.CustomID {
+		q.Set("alpha", fmtFloat(s.AlphaPerEV))
+	}
 	q.Set("dims", strconv.Itoa(s.Dims))
 	for i := 0; i < s.Dims; i++ {
 		q.Set("l"+axisNames[i], phys.FormatLength(s.LengthM[i]))

@@ -83,6 +83,9 @@ type source struct {
 	along   int
 	smooth  bool    // the continuum: analytic throughout
 	evalOps float64 // cost of one N(E) evaluation
+	// weylStates and weylModes are the non-decreasing envelopes of the
+	// smooth counts that stand in for the exact ones above the budget.
+	weylStates, weylModes func(eEV float64) float64
 	// stateAt, modeAt and dosAt memoise N, M and D at every energy of the
 	// curves and point values: each is then one batch per variant (and
 	// broadening a big confined conductor bins all its levels only once).
@@ -139,7 +142,7 @@ func (v *source) stateCurve(ctx context.Context, es, out []float64) error {
 		return v.states.States(ctx, es, out)
 	}
 	for i, e := range es {
-		out[i], _ = smooth.Weyl(v.cond, e)
+		out[i] = v.weylStates(e)
 	}
 	return nil
 }
@@ -152,7 +155,7 @@ func (v *source) modeCurve(ctx context.Context, es, out []float64) error {
 		return v.modes.States(ctx, es, out)
 	}
 	for i, e := range es {
-		out[i] = smooth.WeylModes(v.cond, v.along, e)
+		out[i] = v.weylModes(e)
 	}
 	return nil
 }
@@ -402,6 +405,12 @@ func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor,
 			modeOps, _ = spectrum.Work(tr, top, evals)
 		}
 		exactModes := modeOps <= workBudget
+		if !exactStates {
+			src.weylStates = smooth.Monotone(func(e float64) float64 { n, _ := smooth.Weyl(cond, e); return n }, top)
+		}
+		if !exactModes {
+			src.weylModes = smooth.Monotone(func(e float64) float64 { return smooth.WeylModes(cond, s.Along, e) }, top)
+		}
 		ops1, _ := spectrum.Work(cond, top, 1)
 		ops0, _ := spectrum.Work(cond, top, 0)
 		src.evalOps = ops1 - ops0
@@ -607,7 +616,8 @@ func average(ctx context.Context, in thermal.Integrator, c thermal.Curve, ef, kT
 // continuumFermiLevel solves the bulk density for E_F: it sets the energy
 // range the exact counters must cover.
 func continuumFermiLevel(ctx context.Context, s Scenario, cont spectrum.Conductor) (float64, error) {
-	src := &source{cond: cont}
+	// The bulk count is a monotone power of E: no envelope needed.
+	src := &source{cond: cont, weylStates: func(e float64) float64 { n, _ := smooth.Weyl(cont, e); return n }}
 	hi := 1.0
 	kT := s.KTEV()
 	scale := s.densityScale()

@@ -220,3 +220,25 @@ func TestObserveMatchesRun(t *testing.T) {
 		}
 	}
 }
+
+// TestLongWireAsymptotic: a metre-long hard-wall wire is counted
+// asymptotically; the smooth count's dip below zero at the band edge must
+// not reach the thermal averages (a regression found by fuzzing the page).
+func TestLongWireAsymptotic(t *testing.T) {
+	for _, raw := range []string{"lx=1m", "lx=1m&temp=0", "lx=1m&ly=1m&dims=2&temp=4"} {
+		q, _ := url.ParseQuery(raw)
+		s, err := Parse(q)
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Run(context.Background(), s)
+		if err != nil {
+			t.Fatalf("%s: %v", raw, err)
+		}
+		for _, o := range res.Observables {
+			if o.Electrons < 0 || math.IsNaN(o.ConductanceS) {
+				t.Errorf("%s: %+v", raw, o)
+			}
+		}
+	}
+}

@@ -168,3 +168,28 @@ func TestWeylDerivative(t *testing.T) {
 		t.Errorf("dN̄/dE %g vs numerical %g", d, (n2-n1)/(2*h))
 	}
 }
+
+// TestMonotoneEnvelope: the Weyl count of a thin box falls below zero near
+// the band edge; its envelope never decreases, never goes negative, and is
+// the Weyl count itself higher up.
+func TestMonotoneEnvelope(t *testing.T) {
+	c := conductor([]spectrum.BC{spectrum.Box, spectrum.Box, spectrum.Open}, 1, 10e-9, 100e-9)
+	c.SpinDegeneracy = 2
+	f := func(e float64) float64 { n, _ := Weyl(c, e); return n }
+	if f(1e-6) >= 0 {
+		t.Fatalf("expected the Weyl count to dip below zero, got %g", f(1e-6))
+	}
+	m := Monotone(f, 0.5)
+	prev := 0.0
+	for i := 0; i <= 20000; i++ {
+		e := 0.5 * float64(i) / 20000
+		v := m(e)
+		if v < prev || v < 0 {
+			t.Fatalf("envelope at %g: %g after %g", e, v, prev)
+		}
+		prev = v
+	}
+	if got, want := m(0.4), f(0.4); got != want {
+		t.Errorf("envelope %g, Weyl %g at 0.4 eV", got, want)
+	}
+}

@@ -50,4 +50,3 @@ func Monotone(f func(eEV float64) float64, topEV float64) func(eEV float64) floa
 		return run[i]*(1-t) + run[i+1]*t
 	}
 }
-

@@ -259,7 +259,7 @@ func column(i int, s scenario.Scenario, canon []string) views.CompareColumn {
 	}
 	return views.CompareColumn{
 		Number:    i + 1,
-		Label:     scenarioDescription(i, s),
+		Label:     scenarioDescription(s),
 		OpenURL:   "/?" + canon[i],
 		EditURL:   "/?" + edit.Encode(),
 		RemoveURL: compareURL(others),
@@ -480,10 +480,10 @@ func scenarioLabel(i int, s scenario.Scenario) string {
 	return strconv.Itoa(i+1) + ": " + name + " " + size + " " + strings.Join(bcs, "×")
 }
 
-// scenarioDescription is the longer text of the list under the table:
-// the label's number, the material's full name and each axis.
-func scenarioDescription(i int, s scenario.Scenario) string {
-	return strconv.Itoa(i+1) + ": " + s.Material.Name + ", " + geometry(s)
+// scenarioDescription is the longer text of the numbered list under the
+// table: the material's full name and each axis.
+func scenarioDescription(s scenario.Scenario) string {
+	return s.Material.Name + ", " + geometry(s)
 }
 
 // geometry is the axes of s with their lengths and boundary conditions.

@@ -38,7 +38,7 @@ type CompareFigure struct {
 // CompareColumn is one scenario: its number, legend text and links.
 type CompareColumn struct {
 	Number                      int
-	Label                       string // the legend text, "1: GaAs 6 nm box × …"
+	Label                       string // "GaAs (Γ valley), 6nm box × 6nm box"
 	OpenURL, EditURL, RemoveURL string
 }
 

@@ -1,12 +1,16 @@
 package web
 
 import (
+	"context"
 	"net/http"
+	"net/http/httptest"
 	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
+	"time"
 
+	"github.com/chromedp/chromedp"
 	"golang.org/x/net/html"
 
 	"ringbox/web/views"
@@ -63,4 +67,53 @@ func TestMethodPage(t *testing.T) {
 			t.Errorf("limits section does not mention %q", w)
 		}
 	}
+}
+
+// In a real browser the MathML formulas lay out (each <math> has a size,
+// a fraction is taller than a line of text), the page raises no console
+// error under the site's CSP, and a screenshot is kept for a person.
+func TestBrowserMethodPage(t *testing.T) {
+	a, _ := newTestApp(t, Config{DBPath: filepath.Join(t.TempDir(), "r.db")})
+	srv := httptest.NewServer(a.Handler())
+	defer srv.Close()
+	ctx := newBrowser(t)
+	messages := consoleLog(ctx)
+	var sizes [][2]float64
+	var png []byte
+	timeout(t, ctx,
+		chromedp.EmulateViewport(1280, 900),
+		chromedp.Navigate(srv.URL+"/method"),
+		chromedp.WaitVisible(chromedp.CSS("#limits")),
+		chromedp.Func(func(ctx context.Context, tg *chromedp.Target) error {
+			var err error
+			sizes, err = chromedp.Evaluate[[][2]float64](
+				`Array.from(document.querySelectorAll("math")).map(m => { const r = m.getBoundingClientRect(); return [r.width, r.height]; })`)(ctx, tg)
+			return err
+		}),
+		chromedp.Sleep(200*time.Millisecond),
+		chromedp.Func(func(ctx context.Context, tg *chromedp.Target) error {
+			var err error
+			png, err = chromedp.FullScreenshot(90)(ctx, tg)
+			return err
+		}),
+	)
+	if len(sizes) < 15 {
+		t.Fatalf("%d formulas laid out", len(sizes))
+	}
+	tallest := 0.0
+	for i, s := range sizes {
+		if s[0] <= 0 || s[1] <= 0 {
+			t.Errorf("formula %d has size %v", i, s)
+		}
+		tallest = max(tallest, s[1])
+	}
+	// A block formula with a fraction or sum stands taller than a 16 px line:
+	// the browser laid out MathML rather than showing its text in a row.
+	if tallest < 30 {
+		t.Errorf("tallest formula %.0f px: MathML not laid out", tallest)
+	}
+	if errs := consoleErrors(messages()); len(errs) > 0 {
+		t.Errorf("console errors on /method:\n%s", strings.Join(errs, "\n"))
+	}
+	saveScreenshot(t, "method.png", png)
 }

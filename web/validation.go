@@ -4,6 +4,7 @@ import (
 	"context"
 	"net/http"
 	"strconv"
+	"strings"
 	"sync"
 
 	"github.com/go-chi/chi/v5"
@@ -67,7 +68,7 @@ func (a *App) validationPage(w http.ResponseWriter, r *http.Request) error {
 	rows := make([]views.CheckRow, len(rep.Outcomes))
 	for i, o := range rep.Outcomes {
 		row := views.CheckRow{
-			ID: o.ID, Quantity: o.Quantity, Unit: o.Unit, Source: o.Source, Pass: o.Pass,
+			ID: o.ID, Quantity: o.Quantity, Unit: displayUnit(o.Unit), Source: o.Source, Pass: o.Pass,
 			Reference: strconv.FormatFloat(o.Reference, 'g', -1, 64),
 			Tolerance: o.ToleranceText, Err: o.Err,
 			Computed: "—", Deviation: "—",
@@ -94,5 +95,29 @@ func deviationText(o validation.Outcome) string {
 	if o.Tolerance.Relative {
 		return strconv.FormatFloat(100*o.Deviation, 'g', 3, 64) + " %"
 	}
-	return strconv.FormatFloat(o.Deviation, 'g', 3, 64) + " " + o.Unit
+	return strings.TrimSpace(strconv.FormatFloat(o.Deviation, 'g', 3, 64) + " " + displayUnit(o.Unit))
+}
+
+// superscripts spells the exponents of the table's units ("cm^-3") as a
+// reader expects them (cm⁻³).
+var superscripts = strings.NewReplacer("^-", "⁻", "^", "", "0", "⁰", "1", "¹", "2", "²", "3", "³", "4", "⁴", "5", "⁵", "6", "⁶", "7", "⁷", "8", "⁸", "9", "⁹")
+
+// displayUnit shows a table unit: exponents as superscripts, and nothing
+// for a pure number ("1").
+func displayUnit(u string) string {
+	if u == "1" {
+		return ""
+	}
+	var b strings.Builder
+	for i, part := range strings.Split(u, " ") {
+		if i > 0 {
+			b.WriteByte(' ')
+		}
+		base, exp, ok := strings.Cut(part, "^")
+		b.WriteString(base)
+		if ok {
+			b.WriteString(superscripts.Replace("^" + exp))
+		}
+	}
+	return b.String()
 }

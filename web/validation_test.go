@@ -73,3 +73,21 @@ func TestValidationAPI(t *testing.T) {
 		t.Error("second answer differs")
 	}
 }
+
+func TestDisplayUnit(t *testing.T) {
+	tests := []struct{ in, want string }{
+		{"cm^-3", "cm⁻³"},
+		{"cm^-2 meV^-1", "cm⁻² meV⁻¹"},
+		{"1", ""},
+		{"S", "S"},
+		{"2e²/h", "2e²/h"},
+		{"m^2", "m²"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.in, func(t *testing.T) {
+			if got := displayUnit(tt.in); got != tt.want {
+				t.Errorf("got %q, want %q", got, tt.want)
+			}
+		})
+	}
+}

@@ -573,31 +573,32 @@ var latticeSets = []struct {
 	id, legend string
 	fields     []latticeFieldSpec
 }{
+	// Hints stay to a few words: a field's control column is about 6 rem.
 	{"structure-set", "Structure", []latticeFieldSpec{
 		{key: "structure", label: "structure", options: []views.LatticeOption{
 			{Value: "armchair", Label: "armchair ribbon"},
 			{Value: "zigzag", Label: "zigzag ribbon"},
 			{Value: "tube", Label: "nanotube (n, m)"},
 		}},
-		{key: "lines", label: "N", hint: "ribbons: dimer lines (armchair) or zigzag chains"},
-		{key: "n", label: "n", hint: "tubes: chiral index n"},
-		{key: "m", label: "m", hint: "tubes: 0 ≤ m ≤ n"},
+		{key: "lines", label: "N (ribbon)", hint: "dimer lines or chains"},
+		{key: "n", label: "n (tube)"},
+		{key: "m", label: "m (tube)", hint: "0 ≤ m ≤ n"},
 	}},
 	{"model-set", "Model", []latticeFieldSpec{
-		{key: "gamma0", label: "γ0", hint: "hopping (eV)"},
-		{key: "acc", label: "a_cc", hint: "C–C distance (0.142nm, 1.42A)"},
-		{key: "gs", label: "g_s", hint: "spin degeneracy, 1 or 2"},
+		{key: "gamma0", label: "γ0 (eV)", hint: "hopping"},
+		{key: "acc", label: "a_cc (nm)", hint: "or 1.42A"},
+		{key: "gs", label: "g_s", hint: "spin, 1 or 2"},
 	}},
 	{"fermi-set", "Fermi level", []latticeFieldSpec{
-		{key: "ef", label: "E_F", hint: "from charge neutrality (eV)"},
-		{key: "temp", label: "T", hint: "temperature (K)"},
-		{key: "at", label: "at", hint: "point values at energies (eV, comma list)"},
+		{key: "ef", label: "E_F (eV)", hint: "from neutrality"},
+		{key: "temp", label: "T (K)"},
+		{key: "at", label: "at (eV)", hint: "comma list"},
 	}},
 	{"grid-set", "Grids", []latticeFieldSpec{
-		{key: "emin", label: "E min", hint: "curves and band window (eV)"},
-		{key: "emax", label: "E max", hint: "curves and band window (eV)"},
-		{key: "points", label: "bins", hint: "energy bins of D(E), M(E)"},
-		{key: "kpoints", label: "k points", hint: "across the zone, odd"},
+		{key: "emin", label: "E min (eV)"},
+		{key: "emax", label: "E max (eV)"},
+		{key: "points", label: "E bins"},
+		{key: "kpoints", label: "k points", hint: "odd"},
 	}},
 }
 

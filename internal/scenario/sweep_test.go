@@ -226,9 +226,9 @@ func TestSweepCrossover(t *testing.T) {
 }
 
 func TestSweepDeviationNull(t *testing.T) {
-	// Below the band edge at T = 0 nothing is occupied in the continuum,
-	// while the ring's k = 0 level… lies at E = 0 too: with E_F < 0 every
-	// count is zero and every deviation is 0, not undefined.
+	// Below the band edge at T = 0 every variant is empty (the ring's
+	// lowest level, k = 0, lies at E = 0): zero against zero is a
+	// deviation of 0, not undefined.
 	r, err := RunSweep(context.Background(), mustSweep(t, "lx=10nm&ly=10nm&bz=open&temp=0&ef=-0.01&sweep=all&from=5nm&to=20nm&steps=3&quantity=states"), nil)
 	if err != nil {
 		t.Fatal(err)

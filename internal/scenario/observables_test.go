@@ -237,7 +237,7 @@ func TestFermiLevelRoundTrip(t *testing.T) {
 // TestContinuityAsTGoesToZero: at 4 K the observables of a channel with
 // E_F well between two subband edges (≥ 16 k_BT from each) are those at
 // 0 K: the steps' tails are e^(−16) small, and the smooth continuum moves
-// by its Sommerfeld correction (π²/6)(k_BT)²·M''/M ≈ 2×10⁻⁴ for
+// by its Sommerfeld correction (π²/6)(k_BT)²·M”/M ≈ 2×10⁻⁴ for
 // M ∝ √E at E_F = 15 meV (Ashcroft & Mermin, eq. 2.70).
 func TestContinuityAsTGoesToZero(t *testing.T) {
 	const w = 50e-9

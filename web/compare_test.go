@@ -3,6 +3,7 @@ package web
 import (
 	"net/http"
 	"net/url"
+	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
@@ -265,5 +266,51 @@ func TestSci(t *testing.T) {
 		if got := sci(tt.v); got != tt.want {
 			t.Errorf("sci(%g) = %q, want %q", tt.v, got, tt.want)
 		}
+	}
+}
+
+// FuzzParseComparison: any list of scenario queries is either parsed or
+// refused with a user error naming s; never a panic.
+func FuzzParseComparison(f *testing.F) {
+	f.Add(scenWire, scenSi)
+	f.Add("material=gaas&lx=-1nm", "")
+	f.Add("%zz", "material=custom&m=0.1&mx=0.2")
+	f.Add("?dims=3&lx=1e-9m&ly=200A&lz=0.02um", "a=b=c&&")
+	f.Fuzz(func(t *testing.T, q1, q2 string) {
+		ss, err := parseComparison([]string{q1, q2})
+		if err != nil {
+			e, ok := scenario.AsError(err)
+			if !ok || e.Key != compareParam || e.Msg == "" {
+				t.Fatalf("error %v is not a user error naming s", err)
+			}
+			return
+		}
+		for _, s := range ss {
+			// The canonical form parses back to itself.
+			back, err := parseOne(1, s.Canonical())
+			if err != nil || back.Canonical() != s.Canonical() {
+				t.Fatalf("canonical %q does not round-trip: %v", s.Canonical(), err)
+			}
+		}
+	})
+}
+
+// BenchmarkComparePage renders /compare of three scenarios whose results
+// are cached: the cost of the page itself (table, links, template).
+func BenchmarkComparePage(b *testing.B) {
+	log, _ := testLogger()
+	a, err := New(Config{DBPath: filepath.Join(b.TempDir(), "b.db"), Logger: log})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer a.Close()
+	h := a.Handler()
+	target := compareTarget("/compare", scenWire, scenRing, scenSi)
+	if rec := do(h, http.MethodGet, target); rec.Code != http.StatusOK {
+		b.Fatalf("status %d", rec.Code)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		do(h, http.MethodGet, target)
 	}
 }

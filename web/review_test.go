@@ -472,3 +472,22 @@ func TestNewFailsOnBadDB(t *testing.T) {
 		t.Errorf("New with DBPath a directory: %v, want an error naming it", err)
 	}
 }
+
+// BenchmarkCreateReview is one POST /reviews through the whole stack:
+// form parsing, scenario validation and a durable (fsynced) insert.
+func BenchmarkCreateReview(b *testing.B) {
+	log, _ := testLogger()
+	a, err := New(Config{DBPath: filepath.Join(b.TempDir(), "b.db"), Logger: log})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer a.Close()
+	h := a.Handler()
+	form := url.Values{"title": {"bench"}, "notes": {"n"}, "s": {scenWire, scenRing, scenSi}}
+	b.ReportAllocs()
+	for b.Loop() {
+		if rec := postForm(h, "/reviews", form); rec.Code != http.StatusSeeOther {
+			b.Fatalf("status %d", rec.Code)
+		}
+	}
+}

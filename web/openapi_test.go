@@ -1,15 +1,20 @@
 package web
 
 import (
+	"context"
 	"encoding/json"
+	"fmt"
+	"math"
 	"net/http"
 	"net/url"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 
 	"ringbox/internal/scenario"
+	"ringbox/internal/store"
 )
 
 // documentedKeys returns the query parameter names of a path's GET.
@@ -232,5 +237,168 @@ func TestOpenAPIRoutesAnswer(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// conform checks value against an OpenAPI 3.1 (JSON Schema 2020-12)
+// schema, for the keywords the document uses: $ref, type (one or a list),
+// enum, const, properties, required, items, additionalProperties. With
+// strict, an object may hold only the properties the schema names, so a
+// field added to an answer without documenting it fails.
+func conform(schemas map[string]any, schema map[string]any, v any, path string, strict bool) []string {
+	if r, ok := schema["$ref"].(string); ok {
+		return conform(schemas, schemas[strings.TrimPrefix(r, "#/components/schemas/")].(map[string]any), v, path, strict)
+	}
+	var errs []string
+	bad := func(format string, args ...any) { errs = append(errs, path+": "+fmt.Sprintf(format, args...)) }
+	if t, ok := schema["type"]; ok {
+		types := []string{}
+		switch t := t.(type) {
+		case string:
+			types = append(types, t)
+		case []any:
+			for _, x := range t {
+				types = append(types, x.(string))
+			}
+		}
+		if !slices.ContainsFunc(types, func(t string) bool { return jsonType(v, t) }) {
+			bad("%v is not %v", v, types)
+			return errs
+		}
+	}
+	if e, ok := schema["enum"].([]any); ok && !slices.Contains(e, v) {
+		bad("%v not in %v", v, e)
+	}
+	if c, ok := schema["const"]; ok && c != v {
+		bad("%v is not %v", v, c)
+	}
+	switch v := v.(type) {
+	case map[string]any:
+		props, _ := schema["properties"].(map[string]any)
+		for _, r := range asStrings(schema["required"]) {
+			if _, ok := v[r]; !ok {
+				bad("required %q missing", r)
+			}
+		}
+		extra, _ := schema["additionalProperties"].(map[string]any)
+		for k, x := range v {
+			if ps, ok := props[k].(map[string]any); ok {
+				errs = append(errs, conform(schemas, ps, x, path+"."+k, false)...)
+			} else if extra != nil {
+				errs = append(errs, conform(schemas, extra, x, path+"."+k, false)...)
+			} else if strict {
+				bad("field %q is not documented", k)
+			}
+		}
+	case []any:
+		if items, ok := schema["items"].(map[string]any); ok {
+			for i, x := range v {
+				if i > 3 {
+					break // the shape of the first few is enough
+				}
+				errs = append(errs, conform(schemas, items, x, fmt.Sprintf("%s[%d]", path, i), false)...)
+			}
+		}
+	}
+	return errs
+}
+
+func jsonType(v any, t string) bool {
+	switch t {
+	case "null":
+		return v == nil
+	case "string":
+		_, ok := v.(string)
+		return ok
+	case "boolean":
+		_, ok := v.(bool)
+		return ok
+	case "number":
+		_, ok := v.(float64)
+		return ok
+	case "integer":
+		f, ok := v.(float64)
+		return ok && f == math.Trunc(f)
+	case "object":
+		_, ok := v.(map[string]any)
+		return ok
+	case "array":
+		_, ok := v.([]any)
+		return ok
+	}
+	return false
+}
+
+func asStrings(v any) []string {
+	var out []string
+	xs, _ := v.([]any)
+	for _, x := range xs {
+		out = append(out, x.(string))
+	}
+	return out
+}
+
+// The real answers have the documented shapes, and every top-level field
+// of each answer is documented.
+func TestOpenAPIResponsesConform(t *testing.T) {
+	a, doc := openAPITestApp(t)
+	schemas := doc["components"].(map[string]any)["schemas"].(map[string]any)
+	tests := []struct{ target, schema string }{
+		{"/api/v1/count?material=gaas&dims=2&lx=20nm&ly=200nm&by=open&points=40", "CountResult"},
+		{"/api/v1/count?material=si&dims=3&lx=5nm&ly=5nm&lz=5nm&bz=box&points=40", "CountResult"},
+		{"/api/v1/sweep?material=gaas&dims=2&lx=20nm&ly=200nm&by=open&sweep=lx&from=5nm&to=40nm&steps=4", "SweepResult"},
+		{"/api/v1/lattice?structure=tube&n=6&m=6&kpoints=101&points=100", "LatticeResult"},
+		{"/api/v1/lattice?structure=armchair&lines=7&kpoints=101&points=100", "LatticeResult"},
+		{"/api/v1/validation", "ValidationReport"},
+		{"/healthz", "Health"},
+		{"/api/v1/count?temp=hot", "Error"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.target, func(t *testing.T) {
+			if !answers(a, tt.target) {
+				t.Skipf("%s is not served yet", tt.target)
+			}
+			rec := do(a.Handler(), http.MethodGet, tt.target)
+			var v any
+			if err := json.Unmarshal(rec.Body.Bytes(), &v); err != nil {
+				t.Fatalf("status %d, not JSON: %v", rec.Code, err)
+			}
+			for _, e := range conform(schemas, schemas[tt.schema].(map[string]any), v, tt.schema, true) {
+				t.Error(e)
+			}
+		})
+	}
+	// The checker can fail: a wrong type and an undocumented field.
+	bad := map[string]any{"status": "ok", "extra": 1.0}
+	if len(conform(schemas, schemas["Health"].(map[string]any), bad, "Health", true)) == 0 {
+		t.Error("undocumented field passed")
+	}
+	if len(conform(schemas, schemas["Error"].(map[string]any), map[string]any{"error": 3.0}, "Error", true)) == 0 {
+		t.Error("wrong type passed")
+	}
+}
+
+// A saved review read through the API has the documented shape.
+func TestOpenAPIReviewConforms(t *testing.T) {
+	a, doc := openAPITestApp(t)
+	if a.Reviews == nil || !answers(a, "/api/v1/reviews/1") {
+		t.Skip("reviews are not served yet")
+	}
+	rv, err := a.Reviews.Create(context.Background(), store.Review{Title: "InAs wire options",
+		Notes: "box against ring", Scenarios: []string{"material=inas&dims=3&lx=20nm&ly=20nm&lz=1um&bz=open"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec := do(a.Handler(), http.MethodGet, "/api/v1/reviews/"+strconv.FormatInt(rv.ID, 10))
+	if rec.Code != http.StatusOK {
+		t.Fatalf("status %d: %s", rec.Code, rec.Body.String())
+	}
+	var v any
+	if err := json.Unmarshal(rec.Body.Bytes(), &v); err != nil {
+		t.Fatal(err)
+	}
+	schemas := doc["components"].(map[string]any)["schemas"].(map[string]any)
+	for _, e := range conform(schemas, schemas["Review"].(map[string]any), v, "Review", true) {
+		t.Error(e)
 	}
 }

@@ -396,37 +396,80 @@ func latticeBandsFigure(f *figure.Figure, res *lattice.Result) {
 	f.Title = "E(k): π bands"
 	f.XLabel = "wave number k along the axis (1/nm)"
 	f.YLabel = "energy E (eV)"
-	series := latticeClipBands(b.KPerNM, b.EnergyEV, lo, hi)
-	window := "E from " + latticeSigned(lo) + " to " + latticeSigned(hi) + " eV"
+	k, bands := latticeThinBands(b.KPerNM, b.EnergyEV)
+	series := latticeClipBands(k, bands, lo, hi)
+	// The window shows on the axis; the caption names it only when it
+	// could not be used.
+	var notes []string
 	if len(series) == 0 {
-		series = latticeClipBands(b.KPerNM, b.EnergyEV, math.Inf(-1), math.Inf(1))
-		window = "all plotted bands (none enter the energy window)"
+		series = latticeClipBands(k, bands, math.Inf(-1), math.Inf(1))
+		notes = append(notes, "no band enters E = "+latticeSigned(lo)+"…"+latticeSigned(hi)+" eV")
 	}
-	name := "bands"
+	// The legend stays one word: a long entry is placed beside the plot
+	// and takes its width. How many bands are drawn goes in the caption.
 	if b.Shown < b.Total {
-		name = fmt.Sprintf("%d of %d bands nearest E = 0", b.Shown, b.Total)
+		notes = append(notes, fmt.Sprintf("%d of %d bands, those nearest E = 0", b.Shown, b.Total))
 	}
 	for i := range series {
 		series[i].Role = figure.RoleContinuum
 		series[i].Kind = figure.Line
 		if i == 0 {
-			series[i].Name = name
+			series[i].Name = "bands"
 		}
 	}
 	f.Series = series
 	if k := b.KPerNM; len(k) > 1 && res.EFEV >= lo && res.EFEV <= hi {
-		f.Series = append(f.Series, figure.Series{Name: fmt.Sprintf("E_F = %.3g eV", res.EFEV),
+		f.Series = append(f.Series, figure.Series{Name: "E_F",
 			X: []float64{k[0], k[len(k)-1]}, Y: []float64{res.EFEV, res.EFEV},
 			Kind: figure.Line, Role: figure.RoleOther, Index: 1})
 	}
 	x0, x1 := b.KPerNM[0], b.KPerNM[len(b.KPerNM)-1]
 	f.XMin, f.XMax = &x0, &x1
-	f.Caption = latticeShortName(res.Structure, res.Lines, res.N, res.M) + "; " + window + "; " + latticeModelCaption(res)
+	parts := append([]string{latticeShortName(res.Structure, res.Lines, res.N, res.M)}, notes...)
+	f.Caption = strings.Join(append(parts, latticeModelCaption(res)), "; ")
 }
 
 // latticeSigned formats x with a true minus sign.
 func latticeSigned(x float64) string {
 	return strings.Replace(strconv.FormatFloat(x, 'g', 4, 64), "-", "−", 1)
+}
+
+// latticeBandPoints bounds the band samples drawn: about 14 bytes each in
+// the SVG path, it keeps the band figure near 200 kB when 80 bands fill
+// the window (a wide ribbon), below the 300 kB a page figure may take.
+const latticeBandPoints = 12000
+
+// latticeThinBands keeps every s-th k sample, s chosen so that the bands
+// hold at most latticeBandPoints samples, always keeping k = 0 and the
+// zone edges, where ribbon and zigzag-tube bands have their extrema. The
+// bands are smooth in k, so at a few points' spacing the polyline still
+// reads as the curve; the decimation of the figure package keeps only
+// pixel columns, which for 80 overlapping curves is not enough.
+func latticeThinBands(k []float64, bands [][]float64) ([]float64, [][]float64) {
+	n := len(k)
+	s := (len(bands)*n + latticeBandPoints - 1) / latticeBandPoints
+	if s <= 1 || n < 3 {
+		return k, bands
+	}
+	mid := n / 2
+	var idx []int
+	for i := range n {
+		if i == 0 || i == n-1 || (i-mid)%s == 0 {
+			idx = append(idx, i)
+		}
+	}
+	pick := func(v []float64) []float64 {
+		out := make([]float64, len(idx))
+		for j, i := range idx {
+			out[j] = v[i]
+		}
+		return out
+	}
+	thin := make([][]float64, len(bands))
+	for b, e := range bands {
+		thin[b] = pick(e)
+	}
+	return pick(k), thin
 }
 
 // latticeRound rounds x to 10 significant digits.

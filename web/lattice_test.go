@@ -3,6 +3,7 @@ package web
 import (
 	"context"
 	"encoding/json"
+	"log/slog"
 	"math"
 	"net/http"
 	"net/url"
@@ -284,7 +285,9 @@ func TestLatticePageBadInput(t *testing.T) {
 func TestLatticePlots(t *testing.T) {
 	a, _ := newTestApp(t, Config{})
 	queries := []string{"", "lines=8", "structure=zigzag&lines=12", "structure=tube&n=10&m=0",
-		"structure=tube&n=7&m=4", "lines=40&emin=-0.3&emax=0.3", "emin=9&emax=12"}
+		"structure=tube&n=7&m=4", "lines=40&emin=-0.3&emax=0.3", "emin=9&emax=12",
+		// The widest ribbon: 80 bands fill the ±3 eV window.
+		"lines=1998"}
 	for _, q := range queries {
 		for _, k := range latticePlotKinds {
 			for _, format := range []string{"svg", "png"} {
@@ -396,4 +399,51 @@ func TestLatticeFigures(t *testing.T) {
 			t.Errorf("series %q, want %q", names, want)
 		}
 	})
+}
+
+// BenchmarkLatticeFigures draws each figure of the default N = 7 ribbon as
+// SVG from a cached result: the cost of a render-cache miss.
+func BenchmarkLatticeFigures(b *testing.B) {
+	req, err := scenario.ParseLattice(url.Values{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	ctx := context.Background()
+	res, err := latticeResult(ctx, req)
+	if err != nil {
+		b.Fatal(err)
+	}
+	partner, _, err := latticePartner(ctx, req)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, k := range latticePlotKinds {
+		b.Run(string(k), func(b *testing.B) {
+			b.ReportAllocs()
+			var buf strings.Builder
+			for b.Loop() {
+				buf.Reset()
+				if _, err := latticeFigure(k, res, partner).SVG(&buf); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(buf.Len()), "bytes/svg")
+		})
+	}
+}
+
+// BenchmarkLatticePage serves /lattice with warm caches: the page itself.
+func BenchmarkLatticePage(b *testing.B) {
+	a, err := New(Config{Logger: slog.New(slog.DiscardHandler)})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer a.Close()
+	h := a.Handler()
+	b.ReportAllocs()
+	for b.Loop() {
+		if rec := do(h, http.MethodGet, "/lattice?lines=8"); rec.Code != http.StatusOK {
+			b.Fatal(rec.Code)
+		}
+	}
 }

@@ -48,8 +48,8 @@ func TestEffectiveDensityOfStates(t *testing.T) {
 		lo, hi      float64 // accepted N_c in cm⁻³
 	}{
 		// GaAs at 300 K: 4.4–4.7×10¹⁷ cm⁻³ (Sze & Ng, Physics of
-		// Semiconductor Devices, 3rd ed., Appendix G and Fig. 1.16 values
-		// across editions). With the catalogue's Kane α ≈ 0.57 /eV the
+		// Semiconductor Devices, table of semiconductor properties; the
+		// range spans the values printed in different editions). With the catalogue's Kane α ≈ 0.57 /eV the
 		// parabolic 4.35×10¹⁷ rises by about 15αk_BT/4 ≈ 5.5 %.
 		{"GaAs with Kane alpha (Sze & Ng)", "material=gaas", 4.4e17, 4.7e17},
 		// Si at 300 K: 2.8×10¹⁹ cm⁻³ (Sze & Ng, Appendix G), six X valleys
@@ -162,7 +162,8 @@ func TestSharvinConductance(t *testing.T) {
 
 // TestTransmissionFactor: with a mean free path λ over the channel length
 // L the Landauer transmission is λ/(λ + L) (Datta, Electronic Transport in
-// Mesoscopic Systems (1995), §2.6), so G falls by that factor.
+// Mesoscopic Systems (1995), ch. 2; section from memory), so G falls by
+// that factor.
 func TestTransmissionFactor(t *testing.T) {
 	const base = "material=gaas&lx=10nm&ly=10nm&lz=100nm&bz=open&temp=300&ef=0.08"
 	ballistic := observeQ(t, base)
@@ -237,8 +238,9 @@ func TestFermiLevelRoundTrip(t *testing.T) {
 // TestContinuityAsTGoesToZero: at 4 K the observables of a channel with
 // E_F well between two subband edges (≥ 16 k_BT from each) are those at
 // 0 K: the steps' tails are e^(−16) small, and the smooth continuum moves
-// by its Sommerfeld correction (π²/6)(k_BT)²·M”/M ≈ 2×10⁻⁴ for
-// M ∝ √E at E_F = 15 meV (Ashcroft & Mermin, eq. 2.70).
+// by its Sommerfeld correction (π²/6)(k_BT)²·(d²M/dE²)/M ≈ 2×10⁻⁴
+// for M ∝ √E at E_F = 15 meV (Sommerfeld expansion; Ashcroft & Mermin,
+// eq. 2.70, from memory).
 func TestContinuityAsTGoesToZero(t *testing.T) {
 	const w = 50e-9
 	s := parseQ(t, "material=gaas&dims=2&lx=50nm&bx=box&ly=1um&by=open&along=y")

@@ -33,12 +33,12 @@ const (
 	DefaultSweepSteps = 24
 	DefaultSweepTol   = 0.05
 	MaxSweepTol       = 10
-	// MaxSweepWork caps the estimated operations of a whole sweep (the sum
-	// over its steps of the exact counters' cost, see Sweep.Work): about
-	// ten seconds on one core. A step beyond the exact budget falls back to
-	// the asymptotic count on its own, so the cap bites only on many large
-	// exact steps.
-	MaxSweepWork = 4e10
+	// MaxSweepWork caps the estimated operations of a whole sweep (see
+	// Sweep.Work). Measured sweeps take 0.2 to 3 ns per estimated
+	// operation on two cores, so the cap is a few seconds to half a
+	// minute. A step beyond the exact budget falls back to the asymptotic
+	// count on its own, so the cap bites only on many large exact steps.
+	MaxSweepWork = 1.5e10
 )
 
 // Sweep is a validated size sweep: a scenario, the length that changes
@@ -265,14 +265,24 @@ func (sw Sweep) Unit() string {
 	return "count"
 }
 
-// Work estimates the operations of the whole sweep: for each step, the
-// cost (spectrum.Work) of the exact counters Observe builds for the
-// scenario, box and ring variants and their transverse mode counters;
-// steps past the exact budget count as asymptotic, which is nearly free.
-// It overestimates, as the thermal integrals usually stop early.
+// Work estimates the operations of the whole sweep. For each step and
+// each of the scenario, box and ring variants it adds what Observe spends:
+// building the exact counters (states, and the transverse counter of the
+// modes) and the thermal integrals on them — two on the states curve
+// (electrons, C_Q), one on the modes curve, each capped as
+// (*source).integrator caps it, and some fifty more on the states curve
+// when E_F is solved from a density. A step beyond the exact budget is
+// asymptotic and nearly free.
 func (sw Sweep) Work() float64 {
 	total := 0.0
-	evals := 1 + 3*thermal.DefaultMaxEvals/10
+	integral := func(evalOps float64) float64 {
+		return math.Min(2000*evalOps, math.Max(3e7, 300*evalOps))
+	}
+	counter := func(c spectrum.Conductor, top float64) (build, integ float64) {
+		ops0, _ := spectrum.Work(c, top, 0)
+		ops1, _ := spectrum.Work(c, top, 1)
+		return ops0, integral(ops1 - ops0)
+	}
 	for _, l := range sw.Lengths() {
 		s := sw.At(l)
 		top := observeTop(s)
@@ -280,14 +290,18 @@ func (sw Sweep) Work() float64 {
 		step, exact := 0.0, true
 		for _, v := range []spectrum.Conductor{c, c.WithBC(spectrum.Box), c.WithBC(spectrum.Ring)} {
 			n, _ := smooth.Weyl(v, top)
-			ops, _ := spectrum.Work(v, top, evals)
-			if n > s.Budget || ops > workBudget {
+			build, integ := counter(v, top)
+			if n > s.Budget || build > workBudget {
 				exact = false
 			}
-			step += ops
+			calls := 2.0
+			if s.HasDensity {
+				calls += 50
+			}
+			step += build + calls*integ
 			if tr := v.Transverse(s.Along); len(tr.Axes) > 0 {
-				if mops, _ := spectrum.Work(tr, top, evals); mops <= workBudget {
-					step += mops
+				if mb, mi := counter(tr, top); mb <= workBudget {
+					step += mb + mi
 				}
 			}
 		}

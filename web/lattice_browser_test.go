@@ -103,6 +103,30 @@ func TestBrowserLattice(t *testing.T) {
 		}),
 	)
 	saveScreenshot(t, "lattice.png", png)
+
+	// The tube side: (10, 0), 0.948 eV (Saito, Dresselhaus & Dresselhaus
+	// 1998 formula), unrolls to the armchair ribbon of 20 dimer lines.
+	var head string
+	timeout(t, ctx,
+		chromedp.Navigate(srv.URL+"/lattice?structure=tube&n=10&m=0"),
+		chromedp.WaitVisible(chromedp.CSS("#summary")),
+		latticeDiscard(imagesLoaded),
+		chromedp.Func(func(ctx context.Context, tg *chromedp.Target) error {
+			var err error
+			if head, err = chromedp.Text(chromedp.CSS("#partner-head"))(ctx, tg); err != nil {
+				return err
+			}
+			png, err = chromedp.FullScreenshot(100)(ctx, tg)
+			return err
+		}),
+	)
+	if g := read("row-gap"); g != "0.9481" {
+		t.Errorf("(10, 0) gap cell %q, want 0.9481", g)
+	}
+	if !strings.Contains(head, "armchair ribbon N = 20") {
+		t.Errorf("partner column head %q", head)
+	}
+	saveScreenshot(t, "lattice-tube.png", png)
 	if errs := consoleErrors(messages()); len(errs) > 0 {
 		t.Errorf("console errors on /lattice:\n%s", strings.Join(errs, "\n"))
 	}

@@ -92,7 +92,7 @@ func New(cfg Config) (*App, error) {
 		cache: newRenderCache(cfg.CacheEntries),
 	}
 	if openReviews != nil {
-		s, err := openReviews(cfg.DBPath)
+		s, err := openReviews(cfg.DBPath, cfg.ReadOnly)
 		if err != nil {
 			return nil, fmt.Errorf("web: open review store %s: %w", cfg.DBPath, err)
 		}

@@ -43,14 +43,14 @@ func TestMain(m *testing.M) {
 	open := openReviews
 	var mu sync.Mutex
 	n := 0
-	openReviews = func(p string) (ReviewStore, error) {
+	openReviews = func(p string, readOnly bool) (ReviewStore, error) {
 		if p == (Config{}).withDefaults().DBPath {
 			mu.Lock()
 			n++
 			p = filepath.Join(dir, "app"+strconv.Itoa(n)+".db")
 			mu.Unlock()
 		}
-		return open(p)
+		return open(p, readOnly)
 	}
 	code := m.Run()
 	os.RemoveAll(dir)

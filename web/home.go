@@ -37,7 +37,9 @@ const pageLevels = 10
 
 // conductorPage answers /.
 func (a *App) conductorPage(w http.ResponseWriter, r *http.Request) error {
-	q := r.URL.Query()
+	// cmp carries the other scenarios of a comparison the user is editing
+	// this one from; it is not a scenario key.
+	q, cmp := splitCompare(r.URL.Query())
 	page := views.Conductor{}
 	status := http.StatusOK
 	s, err := scenario.Parse(q)
@@ -47,6 +49,10 @@ func (a *App) conductorPage(w http.ResponseWriter, r *http.Request) error {
 		res, plots, err = a.countAndDraw(r, s)
 		if err == nil {
 			page.Result = resultView(r, res, plots)
+			page.Result.AddToCompare = compareLinks(s.Canonical(), cmp)
+			if len(cmp) > 0 {
+				page.Result.BackToCompare = compareURL(cmp)
+			}
 		}
 	}
 	if err != nil {
@@ -61,6 +67,9 @@ func (a *App) conductorPage(w http.ResponseWriter, r *http.Request) error {
 		page.ErrorKey, page.ErrorMsg = e.Key, e.Msg
 	}
 	page.Sets, page.Hidden = formFields(q, s, err == nil)
+	for _, c := range cmp {
+		page.Hidden = append(page.Hidden, views.Field{Key: "cmp", Value: c})
+	}
 	page.FieldLess = true
 	for _, set := range page.Sets {
 		for i := range set.Fields {

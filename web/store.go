@@ -2,6 +2,7 @@ package web
 
 import (
 	"context"
+	"os"
 	"time"
 
 	"ringbox/internal/store"
@@ -29,14 +30,18 @@ const openTimeout = 15 * time.Second
 // file cannot be opened (a directory, another application's database, a
 // schema from a newer ringbox) instead of failing at the first save.
 //
-// The store is opened read-write even for Config.ReadOnly: the read-only
-// middleware refuses every POST before it reaches a handler, and a new file
-// still gets its schema, so an empty read-only instance shows an empty list
-// rather than an error.
-var openReviews = func(dbPath string) (ReviewStore, error) {
+// With Config.ReadOnly an existing database is opened read-only, so the
+// instance works from a read-only file system and cannot write even past
+// the read-only middleware; a missing file is created read-write first, so
+// an empty read-only instance shows an empty list rather than an error.
+var openReviews = func(dbPath string, readOnly bool) (ReviewStore, error) {
 	ctx, cancel := context.WithTimeout(context.Background(), openTimeout)
 	defer cancel()
-	s, err := store.Open(ctx, dbPath, store.Options{})
+	opts := store.Options{}
+	if _, err := os.Stat(dbPath); err == nil && readOnly {
+		opts.ReadOnly = true
+	}
+	s, err := store.Open(ctx, dbPath, opts)
 	if err != nil {
 		return nil, err
 	}

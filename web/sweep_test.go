@@ -376,3 +376,35 @@ func TestBrowserSweep(t *testing.T) {
 		t.Errorf("console errors:\n%s", strings.Join(errs, "\n"))
 	}
 }
+
+// TestSweepStoppedMidway: a sweep that fails after the page has started
+// (here a step whose density cannot be reached) ends the streamed page
+// with the message and its key, not with half a table.
+func TestSweepStoppedMidway(t *testing.T) {
+	saved := runSweep
+	t.Cleanup(func() { runSweep = saved })
+	runSweep = func(ctx context.Context, sw scenario.Sweep, progress func(done, total int)) (*scenario.SweepResult, error) {
+		progress(1, sw.Steps)
+		return nil, scenario.Errorf("density", "at lx = 2nm: density not reached")
+	}
+	a, _ := newTestApp(t, Config{})
+	rec := do(a.Handler(), "GET", "/sweep?sweep=lx&from=2nm&to=3nm&steps=2&density=1e6")
+	if rec.Code != 200 {
+		t.Fatalf("status %d", rec.Code)
+	}
+	doc := parseHTML(t, rec.Body)
+	stopped := findAll(doc, func(n *html.Node) bool { return attr(n, "id") == "sweep-stopped" })
+	if len(stopped) != 1 || !strings.Contains(text(stopped[0]), "density: at lx = 2nm: density not reached") {
+		t.Fatalf("stopped notice %v", stopped)
+	}
+	if _, rows, _, progress := resultParts(t, doc); rows != 0 || !progress {
+		t.Errorf("rows %d, progress line %v", rows, progress)
+	}
+	sw, err := scenario.ParseSweep(mustQuery(t, "sweep=lx&from=2nm&to=3nm&steps=2&density=1e6"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := sweeps.lru.Get(sw.Canonical()); ok {
+		t.Error("a failed sweep was cached")
+	}
+}

@@ -152,7 +152,7 @@ func TestHomePlaceholderNav(t *testing.T) {
 			}
 		}
 	}
-	want := "Conductor / Sweep /sweep Lattice /lattice Compare /compare Reviews /reviews Method /method Validation /validation"
+	want := "Conductor / Sweep /sweep Lattice /lattice Compare /compare Reviews /reviews Examples /examples Method /method Validation /validation"
 	if strings.Join(got, " ") != want {
 		t.Errorf("nav = %q\nwant  %q", strings.Join(got, " "), want)
 	}

@@ -193,7 +193,7 @@ func TestBrowserHome(t *testing.T) {
 		}),
 	)
 	want := []string{"Conductor /", "Sweep /sweep", "Lattice /lattice", "Compare /compare",
-		"Reviews /reviews", "Method /method", "Validation /validation"}
+		"Reviews /reviews", "Examples /examples", "Method /method", "Validation /validation"}
 	if strings.Join(navTexts, "|") != strings.Join(want, "|") {
 		t.Errorf("navigation = %q, want %q", navTexts, want)
 	}

@@ -114,5 +114,5 @@ func (a *App) examplesPage(w http.ResponseWriter, r *http.Request) error {
 		}
 		items[i] = views.ExampleItem{ID: e.ID, Title: e.Title, Href: e.Href(), Page: page, Shows: e.Shows}
 	}
-	return render(w, r, http.StatusOK, views.Page("Worked examples", views.NavConductor, views.ExamplesBody(items)))
+	return render(w, r, http.StatusOK, views.Page("Worked examples", views.NavExamples, views.ExamplesBody(items)))
 }

@@ -320,6 +320,11 @@ func Observe(ctx context.Context, s Scenario) (*Point, error) {
 		top = 1.5*ef + 0.05 + 2*(thermal.DefaultWindowKT+1)*kT
 	}
 	top = math.Max(top, 1e-3)
+	// The default broadening depends on the grid step: fix it before the
+	// grid shrinks to one point.
+	if s.EtaEV == 0 {
+		s.EtaEV = s.Eta()
+	}
 	s.Points = 1
 	s.AtEV = nil
 	srcs, method, err := build(ctx, s, conds, top)
@@ -630,7 +635,8 @@ func continuumFermiLevel(ctx context.Context, s Scenario, cont spectrum.Conducto
 	}
 	lo := -40*kT - 1e-3
 	ef, err := thermal.SolveFermiLevel(ctx, func(ctx context.Context, e float64) (float64, error) {
-		v, err := average(ctx, thermal.Integrator{RelTol: 1e-8}, src.stateCurve, e, kT)
+		// This E_F only sets the range the exact counters cover: 1e-6 will do.
+		v, err := average(ctx, thermal.Integrator{RelTol: 1e-6, MaxEvals: 400}, src.stateCurve, e, kT)
 		return v * scale, err
 	}, s.Density, lo, hi)
 	if err != nil {

@@ -242,3 +242,22 @@ func TestLongWireAsymptotic(t *testing.T) {
 		}
 	}
 }
+
+// TestObserveQuantumCapacitanceAtZeroTemperature: the lean path broadens the
+// levels of a fully confined conductor as the full run does.
+func TestObserveQuantumCapacitanceAtZeroTemperature(t *testing.T) {
+	q, _ := url.ParseQuery("bz=box&temp=0&ef=0.2")
+	s, _ := Parse(q)
+	full, err := Run(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Observe(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, b := p.Observables["scenario"].QuantumCapacitance, full.Observables["scenario"].QuantumCapacitance
+	if b <= 0 || math.Abs(a/b-1) > 1e-9 {
+		t.Errorf("Observe C_Q %g, Run %g", a, b)
+	}
+}

@@ -340,13 +340,22 @@ func (r *prepared) draw(dc draw.Canvas, scale float64) Frame {
 	plotC := full
 	data := p.DataCanvas(plotC)
 	legC, ok := r.placeLegend(p, l, data)
-	if !ok {
-		w := l.Rectangle(full).Size().X
-		plotC = draw.Crop(full, 0, -(w + gap), 0, 0)
+	if size := l.Rectangle(full).Size(); !ok && size.X <= 0.3*(full.Max.X-full.Min.X) {
+		// A narrow legend goes beside the plot, on the right.
+		plotC = draw.Crop(full, 0, -(size.X + gap), 0, 0)
 		data = p.DataCanvas(plotC)
 		legC = draw.Canvas{Canvas: dc.Canvas, Rectangle: vg.Rectangle{
 			Min: vg.Point{X: data.Max.X + gap, Y: data.Min.Y},
 			Max: vg.Point{X: full.Max.X, Y: data.Max.Y}}}
+		l.Top, l.Left = true, true
+	} else if !ok {
+		// A wide one (long scenario names) would squeeze the data into a
+		// sliver there: it goes below the plot, across its width.
+		plotC = draw.Crop(full, 0, 0, size.Y+2*gap, 0)
+		data = p.DataCanvas(plotC)
+		legC = draw.Canvas{Canvas: dc.Canvas, Rectangle: vg.Rectangle{
+			Min: vg.Point{X: data.Min.X, Y: full.Min.Y},
+			Max: vg.Point{X: full.Max.X, Y: full.Min.Y + size.Y + gap}}}
 		l.Top, l.Left = true, true
 	}
 	p.Draw(plotC)

@@ -11,7 +11,8 @@ import (
 
 // The legend goes in the first corner of the data area where it covers no
 // drawn line or marker; if every corner is taken it goes beside the plot,
-// on the right, where it can hide nothing.
+// on the right, where it can hide nothing, or below the plot when it is too
+// wide for that.
 
 func hasEntries(l *plot.Legend) bool {
 	return l.Rectangle(draw.Canvas{}).Size().Y > 0

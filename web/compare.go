@@ -1,7 +1,6 @@
 package web
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -552,19 +551,12 @@ func (a *App) comparePlot(kind plotKind, format string) handler {
 		}
 		ctx := r.Context()
 		key := "compare/plot/" + string(kind) + "." + format + "?" + compareQuery(canonicals(ss))
-		body, ct, err := a.cached(key, func() ([]byte, string, error) {
+		p, err := a.renderFigure(key, format, func() (figure.Figure, error) {
 			res, err := a.runAll(ctx, ss)
 			if err != nil {
-				return nil, "", err
+				return figure.Figure{}, err
 			}
-			f := compareFigure(kind, ss, res)
-			var buf bytes.Buffer
-			if format == "svg" {
-				_, err = f.SVG(&buf)
-				return buf.Bytes(), "image/svg+xml", err
-			}
-			_, err = f.PNG(&buf, plotPNGDPI)
-			return buf.Bytes(), "image/png", err
+			return compareFigure(kind, ss, res), nil
 		})
 		if err != nil {
 			if errors.Is(err, figure.ErrNoData) || errors.Is(err, figure.ErrNonFinite) {
@@ -572,13 +564,10 @@ func (a *App) comparePlot(kind plotKind, format string) handler {
 			}
 			return err
 		}
-		h := w.Header()
-		h.Set("Cache-Control", plotCacheControl)
-		h.Set("Content-Security-Policy", svgSecurityPolicy)
 		if format == "png" {
-			h.Set("Content-Disposition", `inline; filename="ringbox-compare-`+string(kind)+`.png"`)
+			w.Header().Set("Content-Disposition", `inline; filename="ringbox-compare-`+string(kind)+`.png"`)
 		}
-		writeBody(w, r, http.StatusOK, ct, body)
+		writeFigure(w, r, p)
 		return nil
 	}
 }

@@ -1,7 +1,6 @@
 package web
 
 import (
-	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -47,19 +46,12 @@ const (
 // latticePlotKinds are the figures in the order the page shows them.
 var latticePlotKinds = []latticePlotKind{latticeBands, latticeDOS, latticeModes, latticeFamily}
 
-// Figure size and resolution: the size of the conductor page's figures
-// (one of three columns on a laptop screen, 12 pt labels near their own
-// size) and 200 dpi for slides.
+// Figure size: the size of the conductor page's figures (one of three
+// columns on a laptop screen, 12 pt labels near their own size); PNGs are
+// drawn at plotPNGDPI like every figure.
 const (
 	latticePlotWidthIn  = 5.6
 	latticePlotHeightIn = 4.2
-	latticePNGDPI       = 200
-	// latticePlotCacheControl: a query always draws the same figure, but
-	// a new release may draw it better.
-	latticePlotCacheControl = "public, max-age=3600"
-	// latticeSVGPolicy replaces the page policy on a figure opened on its
-	// own: gonum's SVG styles elements with style attributes.
-	latticeSVGPolicy = "default-src 'none'; style-src 'unsafe-inline'; img-src data:"
 )
 
 func init() {
@@ -165,35 +157,11 @@ func (a *App) latticePlotHandler(kind latticePlotKind, format string) handler {
 		if err != nil {
 			return err
 		}
-		var body []byte
-		var ct string
-		if format == "svg" {
-			var p latticeSVGPlot
-			if p, err = a.latticeSVG(r.Context(), kind, req); err != nil {
-				return err
-			}
-			body, ct = p.body, p.contentType
-		} else {
-			ctx := r.Context()
-			body, ct, err = a.cached(latticePlotKey(kind, "png", req), func() ([]byte, string, error) {
-				f, err := latticeFigureFor(ctx, kind, req)
-				if err != nil {
-					return nil, "", err
-				}
-				var buf bytes.Buffer
-				if _, err := f.PNG(&buf, latticePNGDPI); err != nil {
-					return nil, "", err
-				}
-				return buf.Bytes(), "image/png", nil
-			})
-			if err != nil {
-				return err
-			}
+		p, err := a.latticeFigureImage(r.Context(), kind, format, req)
+		if err != nil {
+			return err
 		}
-		h := w.Header()
-		h.Set("Cache-Control", latticePlotCacheControl)
-		h.Set("Content-Security-Policy", latticeSVGPolicy)
-		writeBody(w, r, http.StatusOK, ct, body)
+		writeFigure(w, r, p)
 		return nil
 	}
 }
@@ -208,48 +176,12 @@ func latticePlotPath(kind latticePlotKind, format string, req scenario.LatticeRe
 	return "/" + latticePlotKey(kind, format, req)
 }
 
-// latticeSVGPlot is a rendered SVG figure and where its data area landed.
-type latticeSVGPlot struct {
-	body        []byte
-	contentType string
-	frame       figure.Frame
-}
-
-// latticeFrames keeps the Frame of each cached SVG under the same key, so
-// the page can hand it to readout.js without drawing the figure again.
-var latticeFrames = newLRU[figure.Frame](1024)
-
-// latticeSVG returns the SVG of kind for req with its frame, drawing it on
-// a miss of either cache.
-func (a *App) latticeSVG(ctx context.Context, kind latticePlotKind, req scenario.LatticeRequest) (latticeSVGPlot, error) {
-	key := latticePlotKey(kind, "svg", req)
-	draw := func() ([]byte, string, error) {
-		f, err := latticeFigureFor(ctx, kind, req)
-		if err != nil {
-			return nil, "", err
-		}
-		var buf bytes.Buffer
-		fr, err := f.SVG(&buf)
-		if err != nil {
-			return nil, "", err
-		}
-		latticeFrames.Add(key, fr)
-		return buf.Bytes(), "image/svg+xml", nil
-	}
-	body, ct, err := a.cached(key, draw)
-	if err != nil {
-		return latticeSVGPlot{}, err
-	}
-	fr, ok := latticeFrames.Get(key)
-	if !ok {
-		// Evicted while the SVG stayed: drawing is deterministic, so draw
-		// again for the frame alone.
-		if _, _, err := draw(); err != nil {
-			return latticeSVGPlot{}, err
-		}
-		fr, _ = latticeFrames.Get(key)
-	}
-	return latticeSVGPlot{body: body, contentType: ct, frame: fr}, nil
+// latticeFigureImage returns the figure kind of req as format (with its
+// frame for an SVG), computing and drawing on a miss of the caches.
+func (a *App) latticeFigureImage(ctx context.Context, kind latticePlotKind, format string, req scenario.LatticeRequest) (svgPlot, error) {
+	return a.renderFigure(latticePlotKey(kind, format, req), format, func() (figure.Figure, error) {
+		return latticeFigureFor(ctx, kind, req)
+	})
 }
 
 // latticeFigureFor computes what kind needs and builds the figure.
@@ -737,7 +669,7 @@ func (a *App) latticePage(w http.ResponseWriter, r *http.Request) error {
 	}
 	result := latticeResultView(res, partner, req, preq)
 	for i, kind := range latticePlotKinds {
-		p, err := a.latticeSVG(ctx, kind, req)
+		p, err := a.latticeFigureImage(ctx, kind, "svg", req)
 		if err != nil {
 			return err
 		}
@@ -747,7 +679,7 @@ func (a *App) latticePage(w http.ResponseWriter, r *http.Request) error {
 			PNG:     latticePlotPath(kind, "png", req),
 			Alt:     latticePlotAlt[kind],
 			Caption: latticePlotCaption[kind],
-			Frame:   latticeFrameAttr(p.frame),
+			Frame:   frameAttr(p.frame),
 		}
 		if i < 3 {
 			result.Plots = append(result.Plots, view)
@@ -922,28 +854,4 @@ func latticeFamilyText(s lattice.Structure, family int) string {
 		return fmt.Sprintf("(n − m) mod 3 = %d", family)
 	}
 	return fmt.Sprintf("N mod 3 = %d", family)
-}
-
-// latticeFrameAttr is the data-frame attribute of a figure.plot element,
-// in the keys static/readout.js reads.
-func latticeFrameAttr(f figure.Frame) string {
-	b, err := json.Marshal(struct {
-		Left   float64 `json:"left"`
-		Top    float64 `json:"top"`
-		Right  float64 `json:"right"`
-		Bottom float64 `json:"bottom"`
-		XMin   float64 `json:"xmin"`
-		XMax   float64 `json:"xmax"`
-		YMin   float64 `json:"ymin"`
-		YMax   float64 `json:"ymax"`
-		LogX   bool    `json:"logx"`
-		LogY   bool    `json:"logy"`
-		Width  float64 `json:"width"`
-		Height float64 `json:"height"`
-	}{f.Left, f.Top, f.Right, f.Bottom, f.XMin, f.XMax, f.YMin, f.YMax, f.LogX, f.LogY, f.Width, f.Height})
-	if err != nil {
-		// Frames from the figure package are finite; anything else is a bug.
-		panic("web: frame does not encode: " + err.Error())
-	}
-	return string(b)
 }

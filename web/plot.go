@@ -1,9 +1,7 @@
 package web
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"fmt"
 	"math"
 	"net/http"
@@ -40,19 +38,7 @@ var plotKinds = []plotKind{plotStates, plotDOS, plotModes}
 const (
 	plotWidthIn  = 5.6
 	plotHeightIn = 4.2
-	// plotPNGDPI suits slides: a 1120 × 840 px image.
-	plotPNGDPI = 200
 )
-
-// plotCacheControl lets a browser keep a figure for an hour: the same
-// query always draws the same figure, but a new release may draw it better.
-const plotCacheControl = "public, max-age=3600"
-
-// svgSecurityPolicy replaces the page policy on a figure: gonum's SVG
-// styles its elements with style attributes, which the page policy
-// (style-src 'self') would refuse when the figure is opened on its own. The
-// figure has no script and loads nothing.
-const svgSecurityPolicy = "default-src 'none'; style-src 'unsafe-inline'; img-src data:"
 
 func init() {
 	addRoutes(func(a *App, r chi.Router) {
@@ -70,35 +56,11 @@ func (a *App) plotHandler(kind plotKind, format string) handler {
 		if err != nil {
 			return err
 		}
-		ctx := r.Context()
-		var body []byte
-		var ct string
-		if format == "svg" {
-			p, err := a.plotSVG(ctx, kind, s)
-			if err != nil {
-				return err
-			}
-			body, ct = p.body, p.contentType
-		} else {
-			body, ct, err = a.cached(plotKey(kind, "png", s), func() ([]byte, string, error) {
-				res, err := a.count(ctx, s)
-				if err != nil {
-					return nil, "", err
-				}
-				var buf bytes.Buffer
-				if _, err := buildFigure(kind, res).PNG(&buf, plotPNGDPI); err != nil {
-					return nil, "", err
-				}
-				return buf.Bytes(), "image/png", nil
-			})
-			if err != nil {
-				return err
-			}
+		p, err := a.plotFigure(r.Context(), kind, format, s)
+		if err != nil {
+			return err
 		}
-		h := w.Header()
-		h.Set("Cache-Control", plotCacheControl)
-		h.Set("Content-Security-Policy", svgSecurityPolicy)
-		writeBody(w, r, http.StatusOK, ct, body)
+		writeFigure(w, r, p)
 		return nil
 	}
 }
@@ -110,81 +72,24 @@ func plotKey(kind plotKind, format string, s scenario.Scenario) string {
 
 // plotPath is the figure's URL for s, as the page links it.
 func plotPath(kind plotKind, format string, s scenario.Scenario) string {
-	return "/plot/" + string(kind) + "." + format + "?" + s.Canonical()
+	return "/" + plotKey(kind, format, s)
 }
 
-// svgPlot is a rendered SVG figure and where its data area landed.
-type svgPlot struct {
-	body        []byte
-	contentType string
-	frame       figure.Frame
-}
-
-// frames keeps the Frame of each SVG in the render cache, under the same
-// key, so the page can hand it to readout.js without drawing the figure
-// again. It holds a few hundred bytes per figure, so it can be larger than
-// the render cache and rarely loses a frame whose SVG is still cached; when
-// it does, plotSVG draws the figure again.
-var frames = newLRU[figure.Frame](1024)
-
-// plotSVG returns the SVG of kind for s with its frame, drawing it on a
-// miss of either cache.
-func (a *App) plotSVG(ctx context.Context, kind plotKind, s scenario.Scenario) (svgPlot, error) {
-	key := plotKey(kind, "svg", s)
-	draw := func() ([]byte, string, error) {
+// plotFigure returns the figure kind of s as format, counting s and
+// drawing on a miss of the caches.
+func (a *App) plotFigure(ctx context.Context, kind plotKind, format string, s scenario.Scenario) (svgPlot, error) {
+	return a.renderFigure(plotKey(kind, format, s), format, func() (figure.Figure, error) {
 		res, err := a.count(ctx, s)
 		if err != nil {
-			return nil, "", err
+			return figure.Figure{}, err
 		}
-		var buf bytes.Buffer
-		fr, err := buildFigure(kind, res).SVG(&buf)
-		if err != nil {
-			return nil, "", err
-		}
-		frames.Add(key, fr)
-		return buf.Bytes(), "image/svg+xml", nil
-	}
-	body, ct, err := a.cached(key, draw)
-	if err != nil {
-		return svgPlot{}, err
-	}
-	fr, ok := frames.Get(key)
-	if !ok {
-		// The frame was evicted while the SVG stayed: draw again, which is
-		// deterministic, for the frame alone.
-		if _, _, err := draw(); err != nil {
-			return svgPlot{}, err
-		}
-		fr, _ = frames.Get(key)
-	}
-	return svgPlot{body: body, contentType: ct, frame: fr}, nil
+		return buildFigure(kind, res), nil
+	})
 }
 
-// readoutFrame is figure.Frame in the keys static/readout.js reads.
-type readoutFrame struct {
-	Left   float64 `json:"left"`
-	Top    float64 `json:"top"`
-	Right  float64 `json:"right"`
-	Bottom float64 `json:"bottom"`
-	XMin   float64 `json:"xmin"`
-	XMax   float64 `json:"xmax"`
-	YMin   float64 `json:"ymin"`
-	YMax   float64 `json:"ymax"`
-	LogX   bool    `json:"logx"`
-	LogY   bool    `json:"logy"`
-	Width  float64 `json:"width"`
-	Height float64 `json:"height"`
-}
-
-// frameAttr is the data-frame attribute of a figure.plot element.
-func frameAttr(f figure.Frame) string {
-	b, err := json.Marshal(readoutFrame{f.Left, f.Top, f.Right, f.Bottom,
-		f.XMin, f.XMax, f.YMin, f.YMax, f.LogX, f.LogY, f.Width, f.Height})
-	if err != nil {
-		// Frames from the figure package are finite; anything else is a bug.
-		panic("web: frame does not encode: " + err.Error())
-	}
-	return string(b)
+// plotSVG returns the SVG of kind for s with its frame.
+func (a *App) plotSVG(ctx context.Context, kind plotKind, s scenario.Scenario) (svgPlot, error) {
+	return a.plotFigure(ctx, kind, "svg", s)
 }
 
 // variantNames are the curves drawn, in the legend's order; "smooth" (the

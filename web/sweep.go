@@ -161,59 +161,22 @@ func (a *App) sweepPlot(kind, format string) handler {
 		if err != nil {
 			return err
 		}
-		var body []byte
-		var ct string
-		if format == "svg" {
-			p, err := a.sweepSVG(kind, res)
-			if err != nil {
-				return err
-			}
-			body, ct = p.body, p.contentType
-		} else {
-			body, ct, err = a.cached(sweepPlotKey(kind, "png", sw), func() ([]byte, string, error) {
-				var buf bytes.Buffer
-				if _, err := sweepFigure(kind, res).PNG(&buf, plotPNGDPI); err != nil {
-					return nil, "", err
-				}
-				return buf.Bytes(), "image/png", nil
-			})
-			if err != nil {
-				return err
-			}
+		p, err := a.sweepFigureImage(kind, format, res)
+		if err != nil {
+			return err
 		}
-		h := w.Header()
-		h.Set("Cache-Control", plotCacheControl)
-		h.Set("Content-Security-Policy", svgSecurityPolicy)
-		writeBody(w, r, http.StatusOK, ct, body)
+		writeFigure(w, r, p)
 		return nil
 	}
 }
 
-// sweepSVG returns the SVG of one figure of res with its frame, from the
-// render cache or drawn now (drawing is cheap next to the sweep).
-func (a *App) sweepSVG(kind string, res *scenario.SweepResult) (svgPlot, error) {
-	key := sweepPlotKey(kind, "svg", res.Spec())
-	draw := func() ([]byte, string, error) {
-		var buf bytes.Buffer
-		fr, err := sweepFigure(kind, res).SVG(&buf)
-		if err != nil {
-			return nil, "", err
-		}
-		frames.Add(key, fr)
-		return buf.Bytes(), "image/svg+xml", nil
-	}
-	body, ct, err := a.cached(key, draw)
-	if err != nil {
-		return svgPlot{}, err
-	}
-	fr, ok := frames.Get(key)
-	if !ok {
-		if _, _, err := draw(); err != nil {
-			return svgPlot{}, err
-		}
-		fr, _ = frames.Get(key)
-	}
-	return svgPlot{body: body, contentType: ct, frame: fr}, nil
+// sweepFigureImage returns one figure of res as format (with its frame for
+// an SVG), from the render cache or drawn now (drawing is cheap next to
+// the sweep).
+func (a *App) sweepFigureImage(kind, format string, res *scenario.SweepResult) (svgPlot, error) {
+	return a.renderFigure(sweepPlotKey(kind, format, res.Spec()), format, func() (figure.Figure, error) {
+		return sweepFigure(kind, res), nil
+	})
 }
 
 // quantityLabel names each swept quantity on axes and in tables.
@@ -480,7 +443,7 @@ func (a *App) sweepView(res *scenario.SweepResult) (*views.SweepResult, error) {
 		sweepDeviation: "|relative deviation| from the continuum; the rule is the tolerance.",
 	}
 	for _, k := range sweepPlotKinds {
-		p, err := a.sweepSVG(k, res)
+		p, err := a.sweepFigureImage(k, "svg", res)
 		if err != nil {
 			return nil, err
 		}

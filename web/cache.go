@@ -4,8 +4,6 @@ import (
 	"container/list"
 	"net/http"
 	"sync"
-
-	"golang.org/x/sync/singleflight"
 )
 
 // lru is a fixed-capacity least-recently-used map from canonical string keys
@@ -77,39 +75,22 @@ type rendered struct {
 // concurrent misses on one key compute once: a page asks for its three
 // figures at the same moment, and two colleagues open the same shared link.
 type renderCache struct {
-	lru   *lru[rendered]
-	group singleflight.Group
+	outputs *resultCache[rendered]
 }
 
 func newRenderCache(capacity int) *renderCache {
-	return &renderCache{lru: newLRU[rendered](capacity)}
+	return &renderCache{outputs: newResultCache[rendered](capacity)}
 }
 
 // get returns the output for key, calling fill on a miss. Concurrent calls
 // with one key share a single fill and its result. Errors are not cached,
 // so a canceled or failed fill is retried by the next request.
 func (c *renderCache) get(key string, fill func() ([]byte, string, error)) ([]byte, string, error) {
-	if v, ok := c.lru.Get(key); ok {
-		return v.body, v.contentType, nil
-	}
-	v, err, _ := c.group.Do(key, func() (any, error) {
-		// A caller that lost the race to the previous Do may find it filled.
-		if v, ok := c.lru.Get(key); ok {
-			return v, nil
-		}
+	v, err := c.outputs.get(key, func() (rendered, error) {
 		body, ct, err := fill()
-		if err != nil {
-			return nil, err
-		}
-		v := rendered{body: body, contentType: ct}
-		c.lru.Add(key, v)
-		return v, nil
+		return rendered{body: body, contentType: ct}, err
 	})
-	if err != nil {
-		return nil, "", err
-	}
-	r := v.(rendered)
-	return r.body, r.contentType, nil
+	return v.body, v.contentType, err
 }
 
 // cached returns the rendered output for key, computing it with fill on a

@@ -6,7 +6,6 @@ import (
 	"net/http"
 
 	"github.com/go-chi/chi/v5"
-	"golang.org/x/sync/singleflight"
 
 	"ringbox/internal/scenario"
 )
@@ -48,37 +47,14 @@ const resultEntries = 32
 // results keeps recent results by canonical query, so that a page and the
 // three figures it embeds, asked for at once, count the scenario once.
 // Results depend on the scenario alone, so Apps may share them.
-var results = &resultCache{lru: newLRU[*scenario.Result](resultEntries)}
-
-// resultCache is an LRU of results whose concurrent misses on one key
-// share a single run.
-type resultCache struct {
-	lru   *lru[*scenario.Result]
-	group singleflight.Group
-}
+var results = newResultCache[*scenario.Result](resultEntries)
 
 // count returns the result of s, from the cache or by running the engines
 // under ctx (the request's deadline). Concurrent callers for one scenario
 // share one run, with the context of the first; errors are not kept. The
 // result is shared: callers must not modify it.
 func (a *App) count(ctx context.Context, s scenario.Scenario) (*scenario.Result, error) {
-	key := s.Canonical()
-	if res, ok := results.lru.Get(key); ok {
-		return res, nil
-	}
-	v, err, _ := results.group.Do(key, func() (any, error) {
-		if res, ok := results.lru.Get(key); ok {
-			return res, nil
-		}
-		res, err := scenario.Run(ctx, s)
-		if err != nil {
-			return nil, err
-		}
-		results.lru.Add(key, res)
-		return res, nil
+	return results.get(s.Canonical(), func() (*scenario.Result, error) {
+		return scenario.Run(ctx, s)
 	})
-	if err != nil {
-		return nil, err
-	}
-	return v.(*scenario.Result), nil
 }

@@ -12,7 +12,6 @@ import (
 	"strings"
 
 	"github.com/go-chi/chi/v5"
-	"golang.org/x/sync/singleflight"
 
 	"ringbox/internal/figure"
 	"ringbox/internal/lattice"
@@ -75,34 +74,19 @@ const latticeEntries = 16
 // latticeResults keeps recent results by canonical query, so that a page,
 // its four figures and the partner's, asked for at once, compute each
 // structure once. Results depend on the request alone, so Apps share them.
-var latticeResults = struct {
-	lru   *lru[*lattice.Result]
-	group singleflight.Group
-}{lru: newLRU[*lattice.Result](latticeEntries)}
+var latticeResults = newResultCache[*lattice.Result](latticeEntries)
 
 // latticeResult returns the result of req, from the cache or by running it
 // under ctx. Concurrent callers for one request share one run; errors are
 // not kept. The result is shared: callers must not modify it.
 func latticeResult(ctx context.Context, req scenario.LatticeRequest) (*lattice.Result, error) {
-	key := req.Canonical()
-	if res, ok := latticeResults.lru.Get(key); ok {
-		return res, nil
-	}
-	v, err, _ := latticeResults.group.Do(key, func() (any, error) {
-		if res, ok := latticeResults.lru.Get(key); ok {
-			return res, nil
-		}
+	return latticeResults.get(req.Canonical(), func() (*lattice.Result, error) {
 		res, err := scenario.RunLattice(ctx, req)
 		if err != nil {
 			return nil, err
 		}
-		latticeResults.lru.Add(key, &res)
 		return &res, nil
 	})
-	if err != nil {
-		return nil, err
-	}
-	return v.(*lattice.Result), nil
 }
 
 // latticePartner returns the full result of req's partner (the rolled-up

@@ -15,7 +15,6 @@ import (
 
 	"github.com/a-h/templ"
 	"github.com/go-chi/chi/v5"
-	"golang.org/x/sync/singleflight"
 
 	"ringbox/internal/figure"
 	"ringbox/internal/phys"
@@ -54,12 +53,7 @@ const sweepEntries = 48
 // sweeps keeps finished sweeps by canonical query; concurrent misses on one
 // key share a single run. Results depend on the query alone, so Apps may
 // share them.
-var sweeps = &sweepCache{lru: newLRU[*scenario.SweepResult](sweepEntries)}
-
-type sweepCache struct {
-	lru   *lru[*scenario.SweepResult]
-	group singleflight.Group
-}
+var sweeps = newResultCache[*scenario.SweepResult](sweepEntries)
 
 // runSweep is scenario.RunSweep; tests replace it to watch the workers.
 var runSweep = scenario.RunSweep
@@ -68,25 +62,9 @@ var runSweep = scenario.RunSweep
 // under ctx. progress, if not nil, follows the run of this caller; a caller
 // that joins a run already going gets no progress. Errors are not kept.
 func (a *App) sweepResult(ctx context.Context, sw scenario.Sweep, progress func(done, total int)) (*scenario.SweepResult, error) {
-	key := sw.Canonical()
-	if res, ok := sweeps.lru.Get(key); ok {
-		return res, nil
-	}
-	v, err, _ := sweeps.group.Do(key, func() (any, error) {
-		if res, ok := sweeps.lru.Get(key); ok {
-			return res, nil
-		}
-		res, err := runSweep(ctx, sw, progress)
-		if err != nil {
-			return nil, err
-		}
-		sweeps.lru.Add(key, res)
-		return res, nil
+	return sweeps.get(sw.Canonical(), func() (*scenario.SweepResult, error) {
+		return runSweep(ctx, sw, progress)
 	})
-	if err != nil {
-		return nil, err
-	}
-	return v.(*scenario.SweepResult), nil
 }
 
 // sweepAPI answers /api/v1/sweep.

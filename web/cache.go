@@ -1,7 +1,10 @@
 package web
 
 import (
+	"bytes"
 	"container/list"
+	"encoding/json"
+	"io"
 	"net/http"
 	"sync"
 )
@@ -113,6 +116,52 @@ func (a *App) serveCached(w http.ResponseWriter, r *http.Request, key string, fi
 	if err != nil {
 		return err
 	}
+	writeBody(w, r, http.StatusOK, ct, body)
+	return nil
+}
+
+// serveJSON answers with the JSON of the value compute returns (one line,
+// as the CLI writes it), cached under key.
+func (a *App) serveJSON(w http.ResponseWriter, r *http.Request, key string, compute func() (any, error)) error {
+	return a.serveCached(w, r, key, func() ([]byte, string, error) {
+		v, err := compute()
+		if err != nil {
+			return nil, "", err
+		}
+		b, err := json.Marshal(v)
+		if err != nil {
+			return nil, "", err
+		}
+		return append(b, '\n'), "application/json; charset=utf-8", nil
+	})
+}
+
+// csvWriter is a result that writes itself as CSV.
+type csvWriter interface {
+	WriteCSV(w io.Writer) error
+}
+
+// serveCSV answers with the CSV of the result compute returns, cached
+// under key, as a download named filename.
+func (a *App) serveCSV(w http.ResponseWriter, r *http.Request, key, filename string, compute func() (csvWriter, error)) error {
+	body, ct, err := a.cached(key, func() ([]byte, string, error) {
+		res, err := compute()
+		if err != nil {
+			return nil, "", err
+		}
+		var buf bytes.Buffer
+		if err := res.WriteCSV(&buf); err != nil {
+			return nil, "", err
+		}
+		return buf.Bytes(), "text/csv; charset=utf-8; header=present", nil
+	})
+	if err != nil {
+		return err
+	}
+	// writeError removes neither header on failure, but an error page with
+	// an attachment disposition would be saved instead of shown: set it
+	// only once the body is there.
+	w.Header().Set("Content-Disposition", `attachment; filename="`+filename+`"`)
 	writeBody(w, r, http.StatusOK, ct, body)
 	return nil
 }

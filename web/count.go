@@ -2,7 +2,6 @@ package web
 
 import (
 	"context"
-	"encoding/json"
 	"net/http"
 
 	"github.com/go-chi/chi/v5"
@@ -27,16 +26,8 @@ func (a *App) countAPI(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	ctx := r.Context()
-	return a.serveCached(w, r, "api/v1/count?"+s.Canonical(), func() ([]byte, string, error) {
-		res, err := a.count(ctx, s)
-		if err != nil {
-			return nil, "", err
-		}
-		b, err := json.Marshal(res)
-		if err != nil {
-			return nil, "", err
-		}
-		return append(b, '\n'), "application/json; charset=utf-8", nil
+	return a.serveJSON(w, r, "api/v1/count?"+s.Canonical(), func() (any, error) {
+		return a.count(ctx, s)
 	})
 }
 

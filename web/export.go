@@ -1,7 +1,6 @@
 package web
 
 import (
-	"bytes"
 	"net/http"
 
 	"github.com/go-chi/chi/v5"
@@ -26,24 +25,7 @@ func (a *App) exportCurves(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	ctx := r.Context()
-	// writeError removes neither header on failure, but an error page with
-	// an attachment disposition would be saved instead of shown: set it
-	// only once the body is there (serveCached writes nothing on error).
-	body, ct, err := a.cached("export/curves.csv?"+s.Canonical(), func() ([]byte, string, error) {
-		res, err := a.count(ctx, s)
-		if err != nil {
-			return nil, "", err
-		}
-		var buf bytes.Buffer
-		if err := res.WriteCSV(&buf); err != nil {
-			return nil, "", err
-		}
-		return buf.Bytes(), "text/csv; charset=utf-8; header=present", nil
+	return a.serveCSV(w, r, "export/curves.csv?"+s.Canonical(), "ringbox-curves.csv", func() (csvWriter, error) {
+		return a.count(ctx, s)
 	})
-	if err != nil {
-		return err
-	}
-	w.Header().Set("Content-Disposition", `attachment; filename="ringbox-curves.csv"`)
-	writeBody(w, r, http.StatusOK, ct, body)
-	return nil
 }

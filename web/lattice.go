@@ -2,7 +2,6 @@ package web
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"math"
 	"net/http"
@@ -119,16 +118,8 @@ func (a *App) latticeAPI(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	ctx := r.Context()
-	return a.serveCached(w, r, "api/v1/lattice?"+req.Canonical(), func() ([]byte, string, error) {
-		res, err := latticeResult(ctx, req)
-		if err != nil {
-			return nil, "", err
-		}
-		b, err := json.Marshal(res)
-		if err != nil {
-			return nil, "", err
-		}
-		return append(b, '\n'), "application/json; charset=utf-8", nil
+	return a.serveJSON(w, r, "api/v1/lattice?"+req.Canonical(), func() (any, error) {
+		return latticeResult(ctx, req)
 	})
 }
 

@@ -1,9 +1,7 @@
 package web
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -74,16 +72,8 @@ func (a *App) sweepAPI(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	ctx := r.Context()
-	return a.serveCached(w, r, "api/v1/sweep?"+sw.Canonical(), func() ([]byte, string, error) {
-		res, err := a.sweepResult(ctx, sw, nil)
-		if err != nil {
-			return nil, "", err
-		}
-		b, err := json.Marshal(res)
-		if err != nil {
-			return nil, "", err
-		}
-		return append(b, '\n'), "application/json; charset=utf-8", nil
+	return a.serveJSON(w, r, "api/v1/sweep?"+sw.Canonical(), func() (any, error) {
+		return a.sweepResult(ctx, sw, nil)
 	})
 }
 
@@ -94,24 +84,9 @@ func (a *App) sweepCSV(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	ctx := r.Context()
-	body, ct, err := a.cached("export/sweep.csv?"+sw.Canonical(), func() ([]byte, string, error) {
-		res, err := a.sweepResult(ctx, sw, nil)
-		if err != nil {
-			return nil, "", err
-		}
-		var buf bytes.Buffer
-		if err := res.WriteCSV(&buf); err != nil {
-			return nil, "", err
-		}
-		return buf.Bytes(), "text/csv; charset=utf-8; header=present", nil
+	return a.serveCSV(w, r, "export/sweep.csv?"+sw.Canonical(), "ringbox-sweep.csv", func() (csvWriter, error) {
+		return a.sweepResult(ctx, sw, nil)
 	})
-	if err != nil {
-		return err
-	}
-	// Only once the body exists: an error page must not be saved as a file.
-	w.Header().Set("Content-Disposition", `attachment; filename="ringbox-sweep.csv"`)
-	writeBody(w, r, http.StatusOK, ct, body)
-	return nil
 }
 
 // The two figures of a sweep.

@@ -472,10 +472,7 @@ func latticeFamilyFigure(f *figure.Figure, res *lattice.Result) {
 		if len(xs[fam]) == 0 {
 			continue
 		}
-		name := fmt.Sprintf("N mod 3 = %d", fam)
-		if tube {
-			name = fmt.Sprintf("(n − m) mod 3 = %d", fam)
-		}
+		name := res.Structure.FamilyLabel(fam)
 		// The metallic families of the model: N = 3j + 2 armchair ribbons
 		// (Nakada et al. 1996) and (n − m) ≡ 0 (mod 3) tubes (Hamada et
 		// al. 1992). Zigzag ribbons are all gapless.
@@ -683,7 +680,7 @@ var latticePlotCaption = map[latticePlotKind]string{
 // latticeResultView formats a result and its partner for the page.
 func latticeResultView(res, partner *lattice.Result, req scenario.LatticeRequest, preq *scenario.LatticeRequest) views.LatticeResult {
 	p := res.Partner
-	name := latticeName(res.Structure, res.Lines, res.N, res.M)
+	name := res.Name()
 	v := views.LatticeResult{
 		Link:        "/lattice?" + req.Canonical(),
 		JSON:        "/api/v1/lattice?" + req.Canonical(),
@@ -698,7 +695,7 @@ func latticeResultView(res, partner *lattice.Result, req scenario.LatticeRequest
 	has := p.Structure != "none"
 	v.PartnerHead = "no partner"
 	if has {
-		v.PartnerHead = "partner: " + latticeName(p.Structure, p.Lines, p.N, p.M)
+		v.PartnerHead = "partner: " + p.Name()
 		if !p.Exact {
 			v.PartnerHead += " (nearest)"
 		}
@@ -722,7 +719,7 @@ func latticeResultView(res, partner *lattice.Result, req scenario.LatticeRequest
 	row("row-gap", "gap", "eV", t, o)
 	t, o = both(latticeYesNo(res.Metallic), latticeYesNo(p.Metallic))
 	row("row-metallic", "metallic", "", t, o)
-	t, o = both(latticeFamilyText(res.Structure, res.Family), latticeFamilyText(p.Structure, p.Family))
+	t, o = both(res.Structure.FamilyLabel(res.Family), p.Structure.FamilyLabel(p.Family))
 	row("row-family", "family", "", t, o)
 	t, o = both(strconv.Itoa(res.Observables.ModesAtEF), strconv.Itoa(p.ModesAtEF))
 	row("row-modes", "modes at E_F", "spin included", t, o)
@@ -764,27 +761,6 @@ func latticeResultView(res, partner *lattice.Result, req scenario.LatticeRequest
 	return v
 }
 
-// latticeName is a structure in words: "armchair ribbon N = 7",
-// "zigzag tube (10, 0)".
-func latticeName(s lattice.Structure, lines int, n, m *int) string {
-	switch s {
-	case lattice.Armchair, lattice.Zigzag:
-		return fmt.Sprintf("%s ribbon N = %d", s, lines)
-	case lattice.Tube:
-		if n != nil && m != nil {
-			kind := "chiral"
-			switch {
-			case *m == 0:
-				kind = "zigzag"
-			case *m == *n:
-				kind = "armchair"
-			}
-			return fmt.Sprintf("%s tube (%d, %d)", kind, *n, *m)
-		}
-	}
-	return string(s)
-}
-
 // latticeShortName is the name for a legend: "ribbon N = 7", "tube (4, 0)".
 func latticeShortName(s lattice.Structure, lines int, n, m *int) string {
 	if s == lattice.Tube && n != nil && m != nil {
@@ -822,11 +798,4 @@ func latticeYesNo(b bool) string {
 		return "yes"
 	}
 	return "no"
-}
-
-func latticeFamilyText(s lattice.Structure, family int) string {
-	if s == lattice.Tube {
-		return fmt.Sprintf("(n − m) mod 3 = %d", family)
-	}
-	return fmt.Sprintf("N mod 3 = %d", family)
 }

@@ -120,7 +120,7 @@ func writeLatticeCSV(w io.Writer, r lattice.Result) error {
 // partner, the point values, and the notes.
 func writeLatticeTable(w io.Writer, r lattice.Result) error {
 	p := r.Partner
-	fmt.Fprintf(w, "ringbox lattice — %s, nearest-neighbour tight binding\n", latticeName(r.Structure, r.Lines, r.N, r.M))
+	fmt.Fprintf(w, "ringbox lattice — %s, nearest-neighbour tight binding\n", r.Name())
 	fmt.Fprintf(w, "model    γ0 = %g eV, a_cc = %g nm, g_s = %d; E_F = %g eV at %g K\n\n", r.Gamma0EV, r.AccNM, r.Gs, r.EFEV, r.TempK)
 
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
@@ -136,11 +136,11 @@ func writeLatticeTable(w io.Writer, r lattice.Result) error {
 		}
 		return s
 	}
-	fmt.Fprintf(tw, "structure\t%s\t%s\n", latticeName(r.Structure, r.Lines, r.N, r.M), partnerName(p))
+	fmt.Fprintf(tw, "structure\t%s\t%s\n", r.Name(), partnerName(p))
 	fmt.Fprintf(tw, "width or diameter\t%s\t%s\n", sizeValue(r.WidthNM, r.DiameterNM), other(sizeValue(p.WidthNM, p.DiameterNM)))
 	fmt.Fprintf(tw, "gap\t%.4g eV\t%s\n", r.GapEV, other(fmt.Sprintf("%.4g eV", p.GapEV)))
 	fmt.Fprintf(tw, "metallic\t%s\t%s\n", yesNo(r.Metallic), other(yesNo(p.Metallic)))
-	fmt.Fprintf(tw, "family\t%s\t%s\n", familyText(r.Structure, r.Family), other(familyText(p.Structure, p.Family)))
+	fmt.Fprintf(tw, "family\t%s\t%s\n", r.Structure.FamilyLabel(r.Family), other(p.Structure.FamilyLabel(p.Family)))
 	fmt.Fprintf(tw, "modes at E_F\t%d\t%s\n", r.Observables.ModesAtEF, other(strconv.Itoa(p.ModesAtEF)))
 	fmt.Fprintf(tw, "G at E_F\t%s\t%s\n", phys.FormatSI(r.Observables.ConductanceS, "S", 4), other(phys.FormatSI(p.ConductanceS, "S", 4)))
 	fmt.Fprintf(tw, "G at E_F (2e²/h)\t%.4g\t%s\n", r.Observables.ConductanceS/phys.ConductanceQuantum,
@@ -172,34 +172,11 @@ func writeLatticeTable(w io.Writer, r lattice.Result) error {
 	return err
 }
 
-// latticeName is a structure in words, e.g. "armchair ribbon N = 7" or
-// "tube (10, 0)".
-func latticeName(s lattice.Structure, lines int, n, m *int) string {
-	switch s {
-	case lattice.Armchair:
-		return fmt.Sprintf("armchair ribbon N = %d", lines)
-	case lattice.Zigzag:
-		return fmt.Sprintf("zigzag ribbon N = %d", lines)
-	case lattice.Tube:
-		if n != nil && m != nil {
-			kind := "chiral"
-			switch {
-			case *m == 0:
-				kind = "zigzag"
-			case *m == *n:
-				kind = "armchair"
-			}
-			return fmt.Sprintf("%s tube (%d, %d)", kind, *n, *m)
-		}
-	}
-	return string(s)
-}
-
 func partnerName(p lattice.Partner) string {
 	if p.Structure == "none" {
 		return "none"
 	}
-	name := latticeName(p.Structure, p.Lines, p.N, p.M)
+	name := p.Name()
 	if !p.Exact {
 		name += " (nearest)"
 	}
@@ -214,13 +191,6 @@ func sizeValue(widthNM, diameterNM *float64) string {
 		return fmt.Sprintf("%.4g nm diameter", *diameterNM)
 	}
 	return "—"
-}
-
-func familyText(s lattice.Structure, family int) string {
-	if s == lattice.Tube {
-		return fmt.Sprintf("(n − m) mod 3 = %d", family)
-	}
-	return fmt.Sprintf("N mod 3 = %d", family)
 }
 
 func yesNo(b bool) string {

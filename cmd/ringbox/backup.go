@@ -3,7 +3,6 @@ package main
 import (
 	"context"
 	"errors"
-	"flag"
 	"fmt"
 	"io"
 
@@ -20,15 +19,8 @@ func backupCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int
 	fs := newFlagSet("backup", stderr)
 	db := fs.String("db", "ringbox.db", "SQLite file of saved reviews to copy")
 	to := fs.String("to", "", "file to write the copy to (must not exist)")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
-	}
-	if fs.NArg() > 0 {
-		fmt.Fprintf(stderr, "ringbox backup: unexpected argument %q\n", fs.Arg(0))
-		return 2
+	if code, ok := parseFlags(fs, args, stderr); !ok {
+		return code
 	}
 	if *to == "" {
 		fmt.Fprintln(stderr, "ringbox backup: --to: the file to write the copy to is required")

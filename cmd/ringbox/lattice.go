@@ -4,11 +4,8 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
-	"errors"
-	"flag"
 	"fmt"
 	"io"
-	"net/url"
 	"strconv"
 	"text/tabwriter"
 
@@ -42,32 +39,16 @@ var latticeFlagHelp = map[string]string{
 
 func latticeCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	fs := newFlagSet("lattice", stderr)
-	vals := map[string]*string{}
-	for _, k := range scenario.LatticeKeys {
-		vals[k] = fs.String(k, "", latticeFlagHelp[k])
+	given := keyFlags(fs, scenario.LatticeKeys, func(k string) string { return latticeFlagHelp[k] })
+	formatOpt := newFormatFlag(fs, "table", "json", "csv")
+	if code, ok := parseFlags(fs, args, stderr); !ok {
+		return code
 	}
-	format := fs.String("format", "table", "output: table, json or csv")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
+	format, ok := formatOpt.get(stderr)
+	if !ok {
 		return 2
 	}
-	if fs.NArg() > 0 {
-		fmt.Fprintf(stderr, "ringbox lattice: unexpected argument %q\n", fs.Arg(0))
-		return 2
-	}
-	if *format != "table" && *format != "json" && *format != "csv" {
-		fmt.Fprintf(stderr, "ringbox lattice: --format: %q is not table, json or csv\n", *format)
-		return 2
-	}
-	q := url.Values{}
-	fs.Visit(func(f *flag.Flag) {
-		if p, ok := vals[f.Name]; ok {
-			q.Set(f.Name, *p)
-		}
-	})
-	req, err := scenario.ParseLattice(q)
+	req, err := scenario.ParseLattice(given())
 	if err != nil {
 		return fail(stderr, "lattice", err)
 	}
@@ -75,7 +56,7 @@ func latticeCmd(ctx context.Context, args []string, stdout, stderr io.Writer) in
 	if err != nil {
 		return fail(stderr, "lattice", err)
 	}
-	switch *format {
+	switch format {
 	case "json":
 		// Byte for byte the API's answer: compact, one line.
 		var b []byte

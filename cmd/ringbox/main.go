@@ -9,11 +9,8 @@ package main
 import (
 	"context"
 	"encoding/json"
-	"errors"
-	"flag"
 	"fmt"
 	"io"
-	"net/url"
 	"os"
 	"os/signal"
 	"runtime/debug"
@@ -71,24 +68,6 @@ var commands = map[string]func(ctx context.Context, args []string, stdout, stder
 	"serve":     serveCmd,
 }
 
-// scenarioFlags registers one string flag per scenario key; set returns the
-// ones given on the command line as url.Values.
-func scenarioFlags(fs *flag.FlagSet, keys []string) func() url.Values {
-	vals := map[string]*string{}
-	for _, k := range keys {
-		vals[k] = fs.String(k, "", "scenario key "+k+" (see DESIGN names)")
-	}
-	return func() url.Values {
-		q := url.Values{}
-		fs.Visit(func(f *flag.Flag) {
-			if p, ok := vals[f.Name]; ok {
-				q.Set(f.Name, *p)
-			}
-		})
-		return q
-	}
-}
-
 // fail prints a user error naming its flag and returns the exit status.
 func fail(stderr io.Writer, cmd string, err error) int {
 	if e, ok := scenario.AsError(err); ok {
@@ -106,28 +85,15 @@ func fail(stderr io.Writer, cmd string, err error) int {
 	return 1
 }
 
-func newFlagSet(name string, stderr io.Writer) *flag.FlagSet {
-	fs := flag.NewFlagSet("ringbox "+name, flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	return fs
-}
-
 func countCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	fs := newFlagSet("count", stderr)
 	given := scenarioFlags(fs, scenario.Keys)
-	format := fs.String("format", "table", "output: table, json or csv")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
+	formatOpt := newFormatFlag(fs, "table", "json", "csv")
+	if code, ok := parseFlags(fs, args, stderr); !ok {
+		return code
 	}
-	if fs.NArg() > 0 {
-		fmt.Fprintf(stderr, "ringbox count: unexpected argument %q\n", fs.Arg(0))
-		return 2
-	}
-	if *format != "table" && *format != "json" && *format != "csv" {
-		fmt.Fprintf(stderr, "ringbox count: --format: %q is not table, json or csv\n", *format)
+	format, ok := formatOpt.get(stderr)
+	if !ok {
 		return 2
 	}
 	s, err := scenario.Parse(given())
@@ -142,7 +108,7 @@ func countCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int 
 	if err != nil {
 		return fail(stderr, "count", err)
 	}
-	switch *format {
+	switch format {
 	case "json":
 		err = json.NewEncoder(stdout).Encode(res)
 	case "csv":

@@ -3,10 +3,9 @@ package main
 import (
 	"context"
 	"encoding/json"
-	"errors"
-	"flag"
 	"fmt"
 	"io"
+	"maps"
 	"os"
 	"slices"
 
@@ -32,31 +31,17 @@ func sweepCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int 
 	fs := newFlagSet("sweep", stderr)
 	keys := slices.DeleteFunc(slices.Clone(scenario.Keys), func(k string) bool { return k == "at" || k == "points" })
 	given := scenarioFlags(fs, keys)
-	sweepVals := map[string]*string{}
-	for _, k := range scenario.SweepKeys {
-		sweepVals[k] = fs.String(k, "", sweepFlagHelp[k])
+	sweepGiven := keyFlags(fs, scenario.SweepKeys, func(k string) string { return sweepFlagHelp[k] })
+	formatOpt := newFormatFlag(fs, "table", "json", "csv")
+	if code, ok := parseFlags(fs, args, stderr); !ok {
+		return code
 	}
-	format := fs.String("format", "table", "output: table, json or csv")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
-	}
-	if fs.NArg() > 0 {
-		fmt.Fprintf(stderr, "ringbox sweep: unexpected argument %q\n", fs.Arg(0))
-		return 2
-	}
-	if *format != "table" && *format != "json" && *format != "csv" {
-		fmt.Fprintf(stderr, "ringbox sweep: --format: %q is not table, json or csv\n", *format)
+	format, ok := formatOpt.get(stderr)
+	if !ok {
 		return 2
 	}
 	q := given()
-	fs.Visit(func(f *flag.Flag) {
-		if p, ok := sweepVals[f.Name]; ok {
-			q.Set(f.Name, *p)
-		}
-	})
+	maps.Copy(q, sweepGiven())
 	sw, err := scenario.ParseSweep(q)
 	if err != nil {
 		return fail(stderr, "sweep", err)
@@ -65,7 +50,7 @@ func sweepCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int 
 	if err != nil {
 		return fail(stderr, "sweep", err)
 	}
-	switch *format {
+	switch format {
 	case "json":
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", " ")

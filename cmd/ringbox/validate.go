@@ -4,8 +4,6 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
-	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -24,21 +22,14 @@ func init() { commands["validate"] = validateCmd }
 
 func validateCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	fs := newFlagSet("validate", stderr)
-	format := fs.String("format", "table", "output: table or json")
+	formatOpt := newFormatFlag(fs, "table", "json")
 	tablePath := fs.String("table", "", "run this reference table (tab-separated, same columns) instead of the built-in one")
 	timeout := fs.Duration("timeout", validation.DefaultTimeout, "time limit of each check")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
+	if code, ok := parseFlags(fs, args, stderr); !ok {
+		return code
 	}
-	if fs.NArg() > 0 {
-		fmt.Fprintf(stderr, "ringbox validate: unexpected argument %q\n", fs.Arg(0))
-		return 2
-	}
-	if *format != "table" && *format != "json" {
-		fmt.Fprintf(stderr, "ringbox validate: --format: %q is not table or json\n", *format)
+	format, ok := formatOpt.get(stderr)
+	if !ok {
 		return 2
 	}
 	checks := []validation.Check(nil)
@@ -60,7 +51,7 @@ func validateCmd(ctx context.Context, args []string, stdout, stderr io.Writer) i
 		fmt.Fprintf(stderr, "ringbox validate: %v\n", err)
 		return 1
 	}
-	if *format == "json" {
+	if format == "json" {
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", " ")
 		err = enc.Encode(rep)

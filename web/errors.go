@@ -35,6 +35,22 @@ var codeStatus = map[scenario.Code]int{
 	scenario.Canceled: http.StatusServiceUnavailable,
 }
 
+// inputError reports whether err is bad input that a form page shows beside
+// its field, with that page's status: 400, or 422 for work over the budget
+// (codeStatus). Anything else, a canceled run or a bug, is for the error
+// page.
+func inputError(err error) (e *scenario.Error, status int, ok bool) {
+	e, ok = scenario.AsError(err)
+	if !ok || e.Code == scenario.Canceled {
+		return nil, 0, false
+	}
+	status, ok = codeStatus[e.Code]
+	if !ok {
+		return nil, 0, false
+	}
+	return e, status, true
+}
+
 // genericInternal is all a user learns about a 500; the details go to the log.
 const genericInternal = "internal error; the server log has the details"
 

@@ -165,3 +165,33 @@ func TestCanceledReason(t *testing.T) {
 		})
 	}
 }
+
+// TestInputError checks which errors a form page shows beside its field:
+// bad input (400) and work over the budget (422, RFC 9110 §15.5.21 for
+// content the server understands but will not process); a canceled run
+// and errors that are not scenario errors go to the error page.
+func TestInputError(t *testing.T) {
+	tests := []struct {
+		name   string
+		err    error
+		ok     bool
+		status int
+	}{
+		{"invalid", &scenario.Error{Code: scenario.Invalid, Key: "lx", Msg: "bad"}, true, http.StatusBadRequest},
+		{"too large wrapped", fmt.Errorf("run: %w", &scenario.Error{Code: scenario.TooLarge, Key: "points", Msg: "big"}), true, http.StatusUnprocessableEntity},
+		{"canceled", &scenario.Error{Code: scenario.Canceled, Msg: "gone"}, false, 0},
+		{"unknown code", &scenario.Error{Code: 99, Msg: "?"}, false, 0},
+		{"other error", errors.New("disk full"), false, 0},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			e, status, ok := inputError(tt.err)
+			if ok != tt.ok || status != tt.status {
+				t.Fatalf("inputError = %v, %d; want %v, %d", ok, status, tt.ok, tt.status)
+			}
+			if ok && (e == nil || e.Key == "") {
+				t.Errorf("inputError lost the key: %+v", e)
+			}
+		})
+	}
+}

@@ -614,12 +614,8 @@ func (a *App) latticePage(w http.ResponseWriter, r *http.Request) error {
 	q := r.URL.Query()
 	req, err := scenario.ParseLattice(q)
 	if err != nil {
-		e, ok := scenario.AsError(err)
+		e, status, ok := inputError(err)
 		if !ok {
-			return err
-		}
-		status, ok := codeStatus[e.Code]
-		if !ok || e.Code == scenario.Canceled {
 			return err
 		}
 		page := views.Lattice{

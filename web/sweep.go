@@ -242,13 +242,9 @@ func (a *App) sweepPage(w http.ResponseWriter, r *http.Request) error {
 		return render(w, r, http.StatusOK, views.Page("Size sweep", views.NavSweep, views.SweepPage(page, nil)))
 	}
 	if err != nil {
-		e, ok := scenario.AsError(err)
+		e, status, ok := inputError(err)
 		if !ok {
 			return err
-		}
-		status := http.StatusBadRequest
-		if e.Code == scenario.TooLarge {
-			status = http.StatusUnprocessableEntity
 		}
 		page.ErrorKey, page.ErrorMsg = e.Key, e.Msg
 		page.FieldLess = true

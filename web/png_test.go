@@ -3,16 +3,15 @@ package web
 import (
 	"bytes"
 	"image/png"
+	"math"
 	"net/http"
 	"net/url"
-	"strings"
 	"testing"
 )
 
 // TestPNGFigures: every .png route answers a PNG (signature per ISO/IEC
-// 15948 §5.2) of the stated size at 200 dpi: 7 × 4.2 in for the conductor and
-// comparison figures, 5.6 × 4.2 in for the lattice and sweep ones (four or
-// two to a row).
+// 15948 §5.2) of the stated size: plotWidthIn × plotHeightIn (5.6 × 4.2 in)
+// at plotPNGDPI (200 dpi), 1120 × 840 px.
 func TestPNGFigures(t *testing.T) {
 	a, _ := newTestApp(t, Config{DBPath: t.TempDir() + "/r.db"})
 	s := url.QueryEscape("material=gaas&lx=8nm&ly=9nm&points=40")
@@ -38,12 +37,12 @@ func TestPNGFigures(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			wantW := 1400
-			if strings.HasPrefix(route, "/lattice/") || strings.HasPrefix(route, "/sweep/") {
-				wantW = 1120
+			wantW, wantH := int(math.Round(plotWidthIn*plotPNGDPI)), int(math.Round(plotHeightIn*plotPNGDPI))
+			if wantW != 1120 || wantH != 840 {
+				t.Fatalf("stated size changed: %d × %d", wantW, wantH)
 			}
-			if cfg.Width != wantW || cfg.Height != 840 {
-				t.Errorf("%d × %d px, want %d × 840", cfg.Width, cfg.Height, wantW)
+			if cfg.Width != wantW || cfg.Height != wantH {
+				t.Errorf("%d × %d px, want %d × %d", cfg.Width, cfg.Height, wantW, wantH)
 			}
 		})
 	}

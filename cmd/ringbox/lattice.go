@@ -3,7 +3,6 @@ package main
 import (
 	"context"
 	"encoding/csv"
-	"encoding/json"
 	"fmt"
 	"io"
 	"strconv"
@@ -56,18 +55,10 @@ func latticeCmd(ctx context.Context, args []string, stdout, stderr io.Writer) in
 	if err != nil {
 		return fail(stderr, "lattice", err)
 	}
-	switch format {
-	case "json":
-		// Byte for byte the API's answer: compact, one line.
-		var b []byte
-		if b, err = json.Marshal(res); err == nil {
-			_, err = stdout.Write(append(b, '\n'))
-		}
-	case "csv":
-		err = writeLatticeCSV(stdout, res)
-	default:
-		err = writeLatticeTable(stdout, res)
-	}
+	// JSON byte for byte the API's answer: compact, one line.
+	err = writeResult(stdout, format, res, "",
+		func(w io.Writer) error { return writeLatticeCSV(w, res) },
+		func(w io.Writer) error { return writeLatticeTable(w, res) })
 	if err != nil {
 		fmt.Fprintf(stderr, "ringbox lattice: %v\n", err)
 		return 1

@@ -108,19 +108,27 @@ func countCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int 
 	if err != nil {
 		return fail(stderr, "count", err)
 	}
-	switch format {
-	case "json":
-		err = json.NewEncoder(stdout).Encode(res)
-	case "csv":
-		err = res.WriteCSV(stdout)
-	default:
-		err = res.WriteTable(stdout)
-	}
-	if err != nil {
+	if err := writeResult(stdout, format, res, "", res.WriteCSV, res.WriteTable); err != nil {
 		fmt.Fprintf(stderr, "ringbox count: %v\n", err)
 		return 1
 	}
 	return 0
+}
+
+// writeResult writes res to w in format: "json" through encoding/json,
+// indented by indent ("" for one line, byte for byte the API's answer),
+// "csv" through writeCSV, anything else through writeTable.
+func writeResult(w io.Writer, format string, res any, indent string, writeCSV, writeTable func(io.Writer) error) error {
+	switch format {
+	case "json":
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", indent)
+		return enc.Encode(res)
+	case "csv":
+		return writeCSV(w)
+	default:
+		return writeTable(w)
+	}
 }
 
 func materialsCmd(_ context.Context, args []string, stdout, stderr io.Writer) int {

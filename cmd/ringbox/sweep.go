@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"maps"
@@ -50,17 +49,7 @@ func sweepCmd(ctx context.Context, args []string, stdout, stderr io.Writer) int 
 	if err != nil {
 		return fail(stderr, "sweep", err)
 	}
-	switch format {
-	case "json":
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		err = enc.Encode(res)
-	case "csv":
-		err = res.WriteCSV(stdout)
-	default:
-		err = res.WriteTable(stdout)
-	}
-	if err != nil {
+	if err := writeResult(stdout, format, res, " ", res.WriteCSV, res.WriteTable); err != nil {
 		fmt.Fprintf(stderr, "ringbox sweep: %v\n", err)
 		return 1
 	}

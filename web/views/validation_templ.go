@@ -43,7 +43,7 @@ func ValidationBody(sum CheckSummary, rows []CheckRow) templ.Component {
 		}
 		ctx = templ.InitializeContext(ctx)
 		ctx = templ.ClearChildren(ctx)
-		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 1, "<section class=\"validation\"><h1>Validation</h1><p>Each row runs a scenario or lattice query through the same engines as the pages and the API, reads one number of the answer and compares it with a published value. The table is <code>testdata/validation/checks.tsv</code>; <code>ringbox validate</code> runs it from the command line (exit status 1 if any check fails) and <a href=\"/api/v1/validation\">/api/v1/validation</a> returns it as JSON. How the numbers are computed: <a href=\"/method\">method</a>.</p>")
+		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 1, "<section class=\"validation\"><h1>Validation</h1><p>Each row runs a scenario or lattice query through the same engines as the pages and the API, reads one number of the answer and compares it with a published value. The table is <code>testdata/validation/checks.tsv</code>; <code>ringbox validate</code> runs it from the command line (exit status 1 if any check fails) and <a href=\"/api/v1/validation\">/api/v1/validation</a> returns it as JSON. How the numbers are computed: <a href=\"/method\">method</a>; the sources are listed in <a href=\"/method#sources\">its last section</a>.</p>")
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}

@@ -27,6 +27,14 @@ var pageRoutes []routeFunc
 // addRoutes registers f; call it from init only.
 func addRoutes(f routeFunc) { pageRoutes = append(pageRoutes, f) }
 
+// storeRoutes are routes that run no engine (saving and importing
+// reviews): they keep the deadline and the read-only guard but skip the
+// concurrency limit, so a server busy counting still takes a save.
+var storeRoutes []routeFunc
+
+// addStoreRoutes registers f among storeRoutes; call it from init only.
+func addStoreRoutes(f routeFunc) { storeRoutes = append(storeRoutes, f) }
+
 // router builds the whole handler tree once, at New.
 //
 // Order of the outer middleware: the access log sees the final status
@@ -50,6 +58,15 @@ func (a *App) router() http.Handler {
 	r.Get("/healthz", a.handle(a.healthz))
 	r.Get("/static/{name}", a.handle(a.staticFile))
 
+	r.Group(func(r chi.Router) {
+		r.Use(deadline(a.cfg.RequestTimeout))
+		if a.cfg.ReadOnly {
+			r.Use(readOnly(a.writeError))
+		}
+		for _, f := range storeRoutes {
+			f(a, r)
+		}
+	})
 	r.Group(func(r chi.Router) {
 		r.Use(limitConcurrency(a.cfg.MaxConcurrent, limitWait, a.writeError))
 		r.Use(deadline(a.cfg.RequestTimeout))

@@ -56,14 +56,11 @@ func (a *App) conductorPage(w http.ResponseWriter, r *http.Request) error {
 		}
 	}
 	if err != nil {
-		e, ok := scenario.AsError(err)
-		if !ok || e.Code == scenario.Canceled {
+		e, st, ok := inputError(err)
+		if !ok {
 			return err // the error page: 503/504, or a 500 for a bug
 		}
-		status = http.StatusBadRequest
-		if e.Code == scenario.TooLarge {
-			status = http.StatusUnprocessableEntity
-		}
+		status = st
 		page.ErrorKey, page.ErrorMsg = e.Key, e.Msg
 	}
 	page.Sets, page.Hidden = formFields(q, s, err == nil)

@@ -169,14 +169,21 @@ type valleyCounter struct {
 	conf   []ladder // confined axes; conf[0] is the outer loop
 	open   openPart
 	// For three confined axes: the energies ε_a + ε_b of the inner two axes,
-	// sorted once, by weight class, so that N₃(γ) = Σₙ w_n N₂(γ − εₙ) costs
-	// one binary search per outer level.
+	// sorted once (by weight class, then merged and indexed in list), so
+	// that N₃(γ) = Σₙ w_n N₂(γ − εₙ) costs one bucket lookup per outer level.
 	classes []class
 	list    columnList
 }
 
 // Counter counts the states of one conductor at energies up to the cap it
 // was built for. It is safe for concurrent use.
+//
+// No state is enumerated. One confined axis is a closed form; two are a sum
+// over the levels of one axis; three are a sum over the outer axis of
+// N₂(γ − εₙ), read from the sorted list of the inner two axes' column
+// energies. Building costs about the number of columns (≈ N^(2/3) for N
+// states in a cube), each N(E) about N^(1/3). Open axes add their continuum
+// count per confined level analytically.
 type Counter struct {
 	c        Conductor
 	gammaMax float64

@@ -6,6 +6,7 @@ import (
 	"math"
 	"net/url"
 	"testing"
+	"time"
 )
 
 func TestParseErrorsNameTheKey(t *testing.T) {
@@ -260,4 +261,38 @@ func TestObserveQuantumCapacitanceAtZeroTemperature(t *testing.T) {
 	if b <= 0 || math.Abs(a/b-1) > 1e-9 {
 		t.Errorf("Observe C_Q %g, Run %g", a, b)
 	}
+}
+
+// FuzzRun runs whatever Parse accepts (with the grid and budget cut so each
+// input stays quick): the engines must answer or fail with a keyed error,
+// never panic, and every number must be finite.
+func FuzzRun(f *testing.F) {
+	for _, s := range []string{"", "lx=1m", "dims=1&bx=ring&temp=0", "material=si&dims=2&by=open&density=1e5",
+		"material=custom&m=0.01&alpha=50&emax=3", "bz=box&eta=1e-6&shape=lorentzian", "at=-5,0,1e3&emin=-10"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, raw string) {
+		q, err := url.ParseQuery(raw)
+		if err != nil {
+			return
+		}
+		s, err := Parse(q)
+		if err != nil {
+			return
+		}
+		s.Points = min(s.Points, 40)
+		s.Budget = min(s.Budget, 1e7)
+		ctx, cancel := context.WithTimeout(context.Background(), 3*time.Second)
+		defer cancel()
+		res, err := Run(ctx, s)
+		if err != nil {
+			if _, ok := AsError(err); !ok {
+				t.Fatalf("%q: error without a key: %v", raw, err)
+			}
+			return
+		}
+		if _, err := json.Marshal(res); err != nil {
+			t.Fatalf("%q: %v", raw, err)
+		}
+	})
 }

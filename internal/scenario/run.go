@@ -266,22 +266,15 @@ func Run(ctx context.Context, s Scenario) (*Result, error) {
 	if err := points(ctx, s, srcs, at, res); err != nil {
 		return nil, err
 	}
-	res.Observables = map[string]Observables{}
-	for _, name := range Variants {
-		o, err := observe(ctx, s, srcs[name], ef)
-		if err != nil {
-			return nil, err
-		}
-		res.Observables[name] = o
+	if res.Observables, err = observeAll(ctx, s, srcs, ef); err != nil {
+		return nil, err
 	}
-	if !c.Confined() || len(c.Axes) > 0 {
-		res.Levels = spectrum.Levels(c, 20)
-	}
-	if res.Levels == nil {
+	// Levels is nil when no axis is confined; the JSON wants [].
+	if res.Levels = spectrum.Levels(c, 20); res.Levels == nil {
 		res.Levels = []spectrum.Level{}
 	}
-	// Mean level spacing at E_F: 1/D there.
-	if d, err := srcs["scenario"].meanDensity(ctx, ef); err == nil && d > 0 {
+	// Mean spacing between states at E_F: 1/D̄ of the smooth count.
+	if _, d := smooth.Weyl(c, ef); d > 0 {
 		sp := 1 / d
 		res.Spacing = &sp
 	}
@@ -336,7 +329,10 @@ func Observe(ctx context.Context, s Scenario) (*Point, error) {
 			return nil, err
 		}
 	}
-	p := &Point{EFEV: ef, Method: method, States: map[string]float64{}, Modes: map[string]float64{}, Observables: map[string]Observables{}}
+	p := &Point{EFEV: ef, Method: method, States: map[string]float64{}, Modes: map[string]float64{}}
+	if p.Observables, err = observeAll(ctx, s, srcs, ef); err != nil {
+		return nil, err
+	}
 	for _, name := range Variants {
 		src := srcs[name]
 		v := []float64{ef}
@@ -349,20 +345,29 @@ func Observe(ctx context.Context, s Scenario) (*Point, error) {
 			return nil, canceled(err)
 		}
 		p.Modes[name] = v[0]
-		o, err := observe(ctx, s, src, ef)
-		if err != nil {
-			return nil, err
-		}
-		p.Observables[name] = o
 	}
 	return p, nil
 }
 
-// meanDensity returns the smooth density of states at e (per eV) from the
-// scenario's Weyl count: the mean over the staircase.
-func (v *source) meanDensity(_ context.Context, e float64) (float64, error) {
-	_, d := smooth.Weyl(v.cond, e)
-	return d, nil
+// observeAll returns the observables of every variant. Variants that share
+// a source (a scenario that is all box, say) share its thermal integrals,
+// the costly part, instead of computing them again.
+func observeAll(ctx context.Context, s Scenario, srcs map[string]*source, ef float64) (map[string]Observables, error) {
+	out := make(map[string]Observables, len(Variants))
+	done := map[*source]Observables{}
+	for _, name := range Variants {
+		src := srcs[name]
+		o, ok := done[src]
+		if !ok {
+			var err error
+			if o, err = observe(ctx, s, src, ef); err != nil {
+				return nil, err
+			}
+			done[src] = o
+		}
+		out[name] = o
+	}
+	return out, nil
 }
 
 func flatten(q map[string][]string) map[string]string {

@@ -305,7 +305,7 @@ func (a *App) facts(ctx context.Context, s scenario.Scenario, res *scenario.Resu
 		return facts{}, err
 	}
 	if o, ok := res.Observables["scenario"]; ok {
-		f.density = sci(o.Density) + " " + prettyUnit(o.DensityUnit)
+		f.density = sci(o.Density) + " " + unitText(o.DensityUnit)
 		f.conductanceS = phys.FormatSI(o.ConductanceS, "S", 4)
 		f.conductanceG0 = strconv.FormatFloat(o.ConductanceG0, 'g', 4, 64)
 	}
@@ -503,10 +503,6 @@ func formatCount(v float64) string {
 	return sci(v)
 }
 
-// superscript maps the characters of an exponent.
-var superscript = strings.NewReplacer("-", "⁻", "0", "⁰", "1", "¹", "2", "²", "3", "³",
-	"4", "⁴", "5", "⁵", "6", "⁶", "7", "⁷", "8", "⁸", "9", "⁹")
-
 // sci formats v to three significant digits, as 8.47×10²² beyond the
 // range where plain digits read easily.
 func sci(v float64) string {
@@ -515,17 +511,9 @@ func sci(v float64) string {
 	}
 	m, e, _ := strings.Cut(strconv.FormatFloat(v, 'e', 2, 64), "e")
 	n, _ := strconv.Atoi(e)
-	return m + "×10" + superscript.Replace(strconv.Itoa(n))
+	return m + "×10" + supDigits.Replace(strconv.Itoa(n))
 }
 
-// prettyUnit writes "cm^-3" as "cm⁻³".
-func prettyUnit(u string) string {
-	base, exp, ok := strings.Cut(u, "^")
-	if !ok {
-		return u
-	}
-	return base + superscript.Replace(exp)
-}
 
 // compareTitle is a figure's heading on the page.
 func compareTitle(kind plotKind) string {

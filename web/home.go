@@ -505,11 +505,16 @@ func pointsTable(res *scenario.Result) views.Table {
 	return t
 }
 
-// unitText writes a density unit with supDigits: cm^-3 → cm⁻³.
+// unitText writes a unit's exponent as superscript: cm^-3 → cm⁻³.
 func unitText(u string) string {
-	return strings.NewReplacer("^-3", "⁻³", "^-2", "⁻²", "^-1", "⁻¹").Replace(u)
+	base, exp, ok := strings.Cut(u, "^")
+	if !ok {
+		return u
+	}
+	return base + supDigits.Replace(exp)
 }
 
+// supDigits maps the characters of an exponent to superscript.
 var supDigits = strings.NewReplacer("-", "⁻", "0", "⁰", "1", "¹", "2", "²", "3", "³", "4", "⁴",
 	"5", "⁵", "6", "⁶", "7", "⁷", "8", "⁸", "9", "⁹")
 

@@ -514,7 +514,6 @@ func sci(v float64) string {
 	return m + "×10" + supDigits.Replace(strconv.Itoa(n))
 }
 
-
 // compareTitle is a figure's heading on the page.
 func compareTitle(kind plotKind) string {
 	switch kind {

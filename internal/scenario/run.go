@@ -270,7 +270,14 @@ func Run(ctx context.Context, s Scenario) (*Result, error) {
 		return nil, err
 	}
 	// Levels is nil when no axis is confined; the JSON wants [].
-	if res.Levels = spectrum.Levels(c, 20); res.Levels == nil {
+	var truncated bool
+	if res.Levels, truncated, err = spectrum.Levels(ctx, c, 20); err != nil {
+		return nil, canceled(err)
+	}
+	if truncated {
+		res.Notes = append(res.Notes, "The level list is cut short: listing more levels would enumerate more than a million states.")
+	}
+	if res.Levels == nil {
 		res.Levels = []spectrum.Level{}
 	}
 	// Mean spacing between states at E_F: 1/D̄ of the smooth count.

@@ -90,10 +90,10 @@ type columnList struct {
 	scale  float64
 }
 
-func (c *columnList) index() {
+func (c *columnList) index(ctx context.Context) error {
 	n := len(c.e)
 	if n == 0 {
-		return
+		return nil
 	}
 	top := c.e[n-1]
 	if !(top > 0) {
@@ -102,7 +102,10 @@ func (c *columnList) index() {
 	c.scale = float64(n) / top
 	c.bucket = make([]int32, n+2)
 	// bucket[b] counts the entries with x·scale < b, i.e. in buckets below b.
-	for _, x := range c.e {
+	for i, x := range c.e {
+		if i%checkEvery == 0 && ctx.Err() != nil {
+			return ctx.Err()
+		}
 		if b := int(x*c.scale) + 1; b < len(c.bucket) {
 			c.bucket[b]++
 		}
@@ -110,7 +113,12 @@ func (c *columnList) index() {
 	for b := 1; b < len(c.bucket); b++ {
 		c.bucket[b] += c.bucket[b-1]
 	}
+	return nil
 }
+
+// checkEvery is how many entries a build handles between checks of its
+// context.
+const checkEvery = 1 << 16
 
 // upper returns the number of entries ≤ x.
 func (c *columnList) upper(x float64) int {
@@ -137,9 +145,9 @@ func (c *columnList) count(x float64) float64 {
 }
 
 // merge combines the weight classes into one sorted list.
-func merge(classes []class) columnList {
+func merge(ctx context.Context, classes []class) (columnList, error) {
 	if len(classes) == 1 && classes[0].w == 1 {
-		return columnList{e: classes[0].e}
+		return columnList{e: classes[0].e}, nil
 	}
 	total := 0
 	for _, c := range classes {
@@ -149,6 +157,9 @@ func merge(classes []class) columnList {
 	pos := make([]int, len(classes))
 	var run float64
 	for len(out.e) < total {
+		if len(out.e)%checkEvery == 0 && ctx.Err() != nil {
+			return columnList{}, ctx.Err()
+		}
 		best := -1
 		for i, c := range classes {
 			if pos[i] < len(c.e) && (best < 0 || c.e[pos[i]] < classes[best].e[pos[best]]) {
@@ -160,7 +171,7 @@ func merge(classes []class) columnList {
 		out.cum = append(out.cum, run)
 		pos[best]++
 	}
-	return out
+	return out, nil
 }
 
 // valleyCounter counts one valley's states.
@@ -190,40 +201,26 @@ type Counter struct {
 	valleys  []valleyCounter
 }
 
-// NewCounter prepares the counts of c for energies up to emaxEV. The work it
-// does is about the number of level columns below emaxEV; see Work.
-func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, error) {
-	if err := c.Check(); err != nil {
-		panic(err.Error())
-	}
-	gmax := Gamma(math.Max(emaxEV, 0), c.AlphaPerEV) * (1 + 4*tieRel)
-	k := &Counter{c: c, gammaMax: gmax}
-	for _, v := range c.Valleys {
-		vc := valleyCounter{weight: float64(c.SpinDegeneracy * v.Degeneracy)}
-		mass := v.MassM0[:len(c.Axes)]
-		vc.open = newOpenPart(c.Axes, mass)
-		for i, a := range c.Axes {
-			if a.BC != Open {
-				vc.conf = append(vc.conf, ladder{q: quantumEV(a, mass[i]), ring: a.BC == Ring})
-			}
-		}
-		switch len(vc.conf) {
-		case 2:
-			// The outer loop runs over the axis with fewer levels.
-			if vc.conf[0].levels(gmax) > vc.conf[1].levels(gmax) {
-				vc.conf[0], vc.conf[1] = vc.conf[1], vc.conf[0]
-			}
-		case 3:
-			// The outer loop runs over the axis with the most levels; the
-			// other two make the sorted column list.
-			slices.SortFunc(vc.conf, func(a, b ladder) int { return b.levels(gmax) - a.levels(gmax) })
-			cl, err := columns(ctx, vc.conf[1], vc.conf[2], gmax-vc.conf[0].q*float64(vc.conf[0].first()))
+// Counter builds the counter the plan describes. Column builds, sorts and
+// merges check ctx.
+func (p Plan) Counter(ctx context.Context) (*Counter, error) {
+	k := &Counter{c: p.c, gammaMax: p.gmax}
+	for i, v := range p.c.Valleys {
+		vp := p.v[i]
+		vc := valleyCounter{weight: float64(p.c.SpinDegeneracy * v.Degeneracy), conf: vp.conf}
+		vc.open = newOpenPart(p.c.Axes, v.MassM0[:len(p.c.Axes)])
+		if vp.list {
+			cl, err := columns(ctx, vc.conf[1], vc.conf[2], p.gmax-vc.conf[0].q*float64(vc.conf[0].first()))
 			if err != nil {
 				return nil, err
 			}
 			vc.classes = cl
-			vc.list = merge(cl)
-			vc.list.index()
+			if vc.list, err = merge(ctx, cl); err != nil {
+				return nil, err
+			}
+			if err := vc.list.index(ctx); err != nil {
+				return nil, err
+			}
 		}
 		k.valleys = append(k.valleys, vc)
 	}
@@ -268,7 +265,9 @@ func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
 		if len(e) == 0 {
 			continue
 		}
-		bucketSort(e, gmax)
+		if err := bucketSort(ctx, e, gmax); err != nil {
+			return nil, err
+		}
 		out = append(out, class{w: [3]float64{1, 2, 4}[c], e: e})
 	}
 	return out, nil
@@ -277,11 +276,11 @@ func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
 // bucketSort sorts values in [0, max] in place in O(n) expected time: the
 // column energies of two axes are spread nearly evenly in γ (the 2D density
 // of states is flat), so one bucket per value holds about one value.
-func bucketSort(e []float64, max float64) {
+func bucketSort(ctx context.Context, e []float64, max float64) error {
 	n := len(e)
 	if n < 64 || !(max > 0) {
 		slices.Sort(e)
-		return
+		return nil
 	}
 	start := make([]int32, n+1)
 	idx := func(x float64) int {
@@ -302,12 +301,16 @@ func bucketSort(e []float64, max float64) {
 		fill[b]++
 	}
 	for b := 0; b < n; b++ {
+		if b%checkEvery == 0 && ctx.Err() != nil {
+			return ctx.Err()
+		}
 		lo, hi := int(start[b]), int(start[b+1])
 		if hi-lo > 1 {
 			slices.Sort(out[lo:hi])
 		}
 	}
 	copy(e, out)
+	return nil
 }
 
 func max0(i int) int {
@@ -355,12 +358,31 @@ func (v *valleyCounter) count(g0 float64) float64 {
 			}
 		}
 	case 3:
+		if v.classes == nil {
+			s = closedColumns(v.conf[0], v.conf[1], v.conf[2], g)
+			break
+		}
 		a := v.conf[0]
 		for n, top := a.first(), a.top(g); n <= top; n++ {
 			s += a.weight(n) * v.list.count(g-a.q*float64(n)*float64(n))
 		}
 	}
 	return v.weight * s
+}
+
+// closedColumns counts the levels of three confined axes with γ ≤ g: a
+// loop over the columns (n_a, n_b) and the closed form along c.
+func closedColumns(a, b, c ladder, g float64) float64 {
+	var s float64
+	for n, top := a.first(), a.top(g); n <= top; n++ {
+		ra := g - a.q*float64(n)*float64(n)
+		var col float64
+		for m, topm := b.first(), b.top(ra); m <= topm; m++ {
+			col += b.weight(m) * c.count(ra-b.q*float64(m)*float64(m))
+		}
+		s += a.weight(n) * col
+	}
+	return s
 }
 
 // countAscending is count for a batch of energies of a three-confined-axis
@@ -426,7 +448,7 @@ func (k *Counter) ascendingColumns(energiesEV []float64) bool {
 		return false
 	}
 	for _, v := range k.valleys {
-		if len(v.conf) != 3 {
+		if v.classes == nil {
 			return false
 		}
 	}

@@ -124,7 +124,7 @@ func TestStatesMatchEnumeration(t *testing.T) {
 			energies[i] = emax * r.Float64()
 		}
 		// Energies exactly on levels test the tie rule (≤ counts).
-		for _, l := range Levels(c, 5) {
+		for _, l := range levels(c, 5) {
 			if l.EnergyEV <= emax {
 				energies = append(energies, l.EnergyEV)
 			}
@@ -187,7 +187,7 @@ func TestModesMatchEnumeration(t *testing.T) {
 func TestRingDegeneracy(t *testing.T) {
 	ring := Conductor{Axes: []Axis{{LengthM: 10e-9, BC: Ring}}, SpinDegeneracy: 2,
 		Valleys: []Valley{{MassM0: [3]float64{1, 1, 1}, Degeneracy: 1}}}
-	for i, l := range Levels(ring, 10) {
+	for i, l := range levels(ring, 10) {
 		want := 4
 		if i == 0 {
 			want = 2
@@ -199,7 +199,7 @@ func TestRingDegeneracy(t *testing.T) {
 	// Squared length ratios π/2 and e are irrational, so no two levels coincide.
 	box := Conductor{Axes: []Axis{{10e-9, Box}, {10e-9 * math.Sqrt(math.Pi/2), Box}, {10e-9 * math.Sqrt(math.E), Box}},
 		SpinDegeneracy: 2, Valleys: []Valley{{MassM0: [3]float64{1, 1, 1}, Degeneracy: 1}}}
-	for _, l := range Levels(box, 30) {
+	for _, l := range levels(box, 30) {
 		if l.Degeneracy != 2 {
 			t.Errorf("incommensurate box level %v has degeneracy %d", l.N, l.Degeneracy)
 		}
@@ -207,7 +207,7 @@ func TestRingDegeneracy(t *testing.T) {
 	// A cube has the familiar triple degeneracy of (1,1,2) (common practice).
 	cube := box
 	cube.Axes = []Axis{{10e-9, Box}, {10e-9, Box}, {10e-9, Box}}
-	if l := Levels(cube, 2); l[1].Degeneracy != 6 {
+	if l := levels(cube, 2); l[1].Degeneracy != 6 {
 		t.Errorf("cube second level degeneracy %d, want 3×2", l[1].Degeneracy)
 	}
 }
@@ -285,7 +285,7 @@ func TestGaAs2DDensityOfStates(t *testing.T) {
 	// And a quantum well (one box axis) steps by that amount per subband.
 	w := Conductor{Axes: []Axis{{10e-9, Box}, {1e-6, Open}, {1e-6, Open}}, SpinDegeneracy: 2, Valleys: c.Valleys}
 	kw, _ := NewCounter(ctx, w, 1)
-	lv := Levels(w, 2)
+	lv := levels(w, 2)
 	e := []float64{(lv[0].EnergyEV + lv[1].EnergyEV) / 2, lv[1].EnergyEV * 1.01}
 	dw := make([]float64, 2)
 	_ = kw.DensityOfStates(ctx, e, dw)
@@ -392,7 +392,7 @@ func TestBucketSort(t *testing.T) {
 		e = append(e, 0, 7)
 		want := append([]float64(nil), e...)
 		sort.Float64s(want)
-		bucketSort(e, 7)
+		_ = bucketSort(context.Background(), e, 7)
 		for i := range e {
 			if e[i] != want[i] {
 				t.Fatalf("n=%d: element %d is %g, want %g", n, i, e[i], want[i])
@@ -411,7 +411,10 @@ func TestLevelsMatchEnumeration(t *testing.T) {
 		if !c.Confined() {
 			continue
 		}
-		lv := Levels(c, 8)
+		lv, truncated, err := Levels(ctx, c, 8)
+		if err != nil || truncated {
+			t.Fatalf("trial %d: truncated %v, %v", trial, truncated, err)
+		}
 		if len(lv) != 8 {
 			t.Fatalf("trial %d: %d levels", trial, len(lv))
 		}
@@ -433,4 +436,43 @@ func TestLevelsMatchEnumeration(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestLevelsExtremeRatios: a 1 cm × 1 cm × 0.1 nm box and a 10⁵ mass ratio
+// list their lowest levels quickly and resolve the splittings of the long
+// axes (common practice: ε = ħ²π²n²/2mL² per axis, added).
+func TestLevelsExtremeRatios(t *testing.T) {
+	ctx := context.Background()
+	sheet := Conductor{SpinDegeneracy: 2, Valleys: []Valley{{MassM0: [3]float64{0.067, 0.067, 0.067}, Degeneracy: 1}},
+		Axes: []Axis{{LengthM: 1e-2}, {LengthM: 1e-2}, {LengthM: 1e-10}}}
+	lv, truncated, err := Levels(ctx, sheet, 20)
+	if err != nil || truncated || len(lv) != 20 {
+		t.Fatalf("%d levels, truncated %v, %v", len(lv), truncated, err)
+	}
+	// The x and y axes are equal: levels (1,1), (1,2)+(2,1), (2,2), … with
+	// excitations q·(nx² + ny² − 2), q = ħ²π²/(2mL²).
+	q := phys.HbarSqOver2M0EVm2 * math.Pi * math.Pi / (0.067 * 1e-4)
+	want := []struct {
+		x float64
+		g int
+	}{{0, 2}, {3, 4}, {6, 2}, {8, 4}, {11, 4}}
+	for i, w := range want {
+		if math.Abs(lv[i].AboveLowestEV-w.x*q) > 1e-9*q || lv[i].Degeneracy != w.g {
+			t.Errorf("level %d: %g eV above lowest (want %g), degeneracy %d (want %d)", i, lv[i].AboveLowestEV, w.x*q, lv[i].Degeneracy, w.g)
+		}
+	}
+	ratio := Conductor{SpinDegeneracy: 2, Valleys: []Valley{{MassM0: [3]float64{0.1, 1e-3, 1}, Degeneracy: 1}},
+		Axes: []Axis{{LengthM: 1}, {LengthM: 1e-9}}}
+	if lv, truncated, err = Levels(ctx, ratio, 20); err != nil || truncated || len(lv) != 20 {
+		t.Fatalf("mass ratio: %d levels, truncated %v, %v", len(lv), truncated, err)
+	}
+}
+
+// levels is Levels without a deadline, for tests that want the list.
+func levels(c Conductor, max int) []Level {
+	l, _, err := Levels(context.Background(), c, max)
+	if err != nil {
+		panic(err)
+	}
+	return l
 }

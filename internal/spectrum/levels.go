@@ -14,68 +14,90 @@ type Level struct {
 	EnergyEV   float64  `json:"energy_eV"`
 	Degeneracy int      `json:"degeneracy"` // spin, valleys and ±n included
 	Valleys    []string `json:"valleys,omitempty"`
+	// AboveLowestEV is the energy above the lowest level, resolved where
+	// EnergyEV rounds (a 1 cm axis beside a 0.1 nm one).
+	AboveLowestEV float64 `json:"above_lowest_eV"`
 	// N holds the quantum numbers of one state at this energy, one per
 	// confined axis (ring axes give n ≥ 0; −n has the same energy).
 	N []int `json:"n"`
 }
 
+// MaxListedStates caps the states Levels enumerates to find the lowest
+// levels; beyond it the listing is cut short and says so.
+const MaxListedStates = 1 << 20
+
 // Levels returns the lowest max distinct levels of the confined axes, with
-// their degeneracies. Energies that agree to 1e-9 relative are one level.
-// A conductor with no confined axis has none.
-func Levels(c Conductor, max int) []Level {
+// their degeneracies, and whether the listing was cut short (fewer than max
+// levels because a level, or the states below it, would take more than
+// MaxListedStates to enumerate). A conductor with no confined axis has none.
+//
+// States are compared by their energy above their valley's ground level,
+// summed from the axes' excitations q(n² − n₀²), so that levels a 1 cm axis
+// splits by 10⁻¹⁵ eV on top of a 30 eV ground level of a 0.1 nm axis stay
+// apart. Two energies are one level when they differ by less than 10⁻¹⁰ of
+// the smallest level quantum q of any axis (every level spacing on one axis
+// is at least q) or by 10⁻¹² relative (float rounding of the sums).
+func Levels(ctx context.Context, c Conductor, max int) ([]Level, bool, error) {
 	if err := c.Check(); err != nil {
 		panic(err.Error())
+	}
+	lv, ok := newLevelWalk(c, max)
+	if !ok || max <= 0 {
+		return nil, false, nil
 	}
 	// Enumerate below a growing fraction of a safe bound: the states
 	// inside grow like the fraction^(d/2), so the first tries are cheap, and
 	// a try that finds more than max distinct levels has all states of the
-	// lowest max levels.
-	var all []state
-	for _, frac := range []float64{1.0 / 64, 1.0 / 16, 1.0 / 4, 1} {
+	// lowest max levels. A try over the cap falls back to the last that fit.
+	var all, fit []state
+	truncated := false
+	for _, frac := range []float64{1.0 / 256, 1.0 / 64, 1.0 / 16, 1.0 / 4, 1} {
 		all = all[:0]
-		if !enumerateLevels(c, max, frac, func(st state) { all = append(all, st) }) {
-			return nil
+		done, err := lv.walk(ctx, frac, func(st state) { all = append(all, st) })
+		if err != nil {
+			return nil, false, err
 		}
-		if frac == 1 || distinct(all) > max {
+		if !done {
+			truncated = true
+			break
+		}
+		fit = append(fit[:0], all...)
+		if frac == 1 || lv.distinct(fit) > max {
 			break
 		}
 	}
-	// Sort small keys, not the states: ties keep enumeration order.
-	type key struct {
-		g float64
-		i int
+	if len(fit) == 0 {
+		return nil, truncated, nil
 	}
-	keys := make([]key, len(all))
-	for i, s := range all {
-		keys[i] = key{s.g, i}
-	}
-	slices.SortFunc(keys, func(a, b key) int {
-		if c := cmp.Compare(a.g, b.g); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.i, b.i)
-	})
+	slices.SortStableFunc(fit, func(a, b state) int { return cmp.Compare(a.key, b.key) })
 	var out []Level
-	for _, kk := range keys {
-		s := all[kk.i]
-		e := Energy(s.g, c.AlphaPerEV)
-		if n := len(out); n > 0 && math.Abs(out[n-1].EnergyEV-e) <= 1e-9*math.Abs(e) {
-			out[n-1].Degeneracy += s.w
-			if !contains(out[n-1].Valleys, s.valley) && s.valley != "" {
-				out[n-1].Valleys = append(out[n-1].Valleys, s.valley)
+	last := 0.0
+	for _, st := range fit {
+		if n := len(out); n > 0 && lv.tied(last, st.key) {
+			out[n-1].Degeneracy += st.w
+			if !contains(out[n-1].Valleys, st.valley) && st.valley != "" {
+				out[n-1].Valleys = append(out[n-1].Valleys, st.valley)
 			}
 			continue
 		}
 		if len(out) == max {
 			break
 		}
-		l := Level{EnergyEV: e, Degeneracy: s.w, N: s.n}
-		if s.valley != "" {
-			l.Valleys = []string{s.valley}
+		last = st.key
+		e := Energy(lv.base+st.key, c.AlphaPerEV)
+		l := Level{EnergyEV: e, AboveLowestEV: st.key, Degeneracy: st.w, N: st.n}
+		if a := c.AlphaPerEV; a != 0 {
+			// E(γ₀+k) − E(γ₀) without cancellation: 2k/(√(1+4α(γ₀+k)) + √(1+4αγ₀)).
+			l.AboveLowestEV = 2 * st.key / (math.Sqrt(1+4*a*(lv.base+st.key)) + math.Sqrt(1+4*a*lv.base))
+		}
+		if st.valley != "" {
+			l.Valleys = []string{st.valley}
 		}
 		out = append(out, l)
 	}
-	return out
+	// fit is a complete walk below its cut: every level listed has all its
+	// states. Fewer than max levels after a cut-short walk is a truncation.
+	return out, truncated && len(out) < max, nil
 }
 
 func contains(list []string, s string) bool {
@@ -304,93 +326,127 @@ func (k *Counter) binnedColumns(ctx context.Context, lo, hi, etaEV float64, add 
 	return used, nil
 }
 
-// state is one lattice point of the confined axes with its weight.
+// state is one lattice point of the confined axes with its weight; key is
+// its γ above the lowest valley's ground level.
 type state struct {
-	g      float64
+	key    float64
 	w      int
 	valley string
 	n      []int
 }
 
-// distinct counts the energies of states that differ by more than 1e-9 relative.
-func distinct(all []state) int {
-	g := make([]float64, len(all))
-	for i, s := range all {
-		g[i] = s.g
-	}
-	slices.Sort(g)
-	n := 0
-	for i := range g {
-		if i == 0 || g[i]-g[i-1] > 1e-9*math.Abs(g[i]) {
-			n++
-		}
-	}
-	return n
+// levelWalk enumerates the states of the confined axes by their excitation.
+type levelWalk struct {
+	c     Conductor
+	lad   [][]ladder // per valley
+	shift []float64  // per valley: its ground level above base
+	base  float64    // the lowest ground level (γ)
+	bound float64    // key at or above the max-th lowest level
+	tol   float64    // keys closer than this are one level
 }
 
-// enumerateLevels calls emit for every state with γ below base + frac·(bound
-// − base), where bound is an energy at or above the max-th lowest level. It
-// reports false when the conductor has no confined axis.
-func enumerateLevels(c Conductor, max int, frac float64, emit func(state)) bool {
-	ladders := func(v Valley) []ladder {
+func newLevelWalk(c Conductor, max int) (*levelWalk, bool) {
+	lv := &levelWalk{c: c, base: math.Inf(1), bound: math.Inf(1)}
+	qmin := math.Inf(1)
+	var ground []float64
+	for _, v := range c.Valleys {
 		var lad []ladder
 		for i, a := range c.Axes {
 			if a.BC != Open {
 				lad = append(lad, ladder{q: quantumEV(a, v.MassM0[i]), ring: a.BC == Ring})
 			}
 		}
-		return lad
-	}
-	lowest := func(lad []ladder) float64 {
-		var b float64
-		for _, l := range lad {
-			b += l.q * float64(l.first()*l.first())
-		}
-		return b
-	}
-	// One cutoff for every valley: the max-th lowest level of the whole
-	// conductor lies at or below each valley's own ε_i(first+max) + Σ_{j≠i}
-	// ε_j(first).
-	base, bound := math.Inf(1), math.Inf(1)
-	for _, v := range c.Valleys {
-		lad := ladders(v)
 		if len(lad) == 0 {
-			return false
+			return nil, false
 		}
-		b := lowest(lad)
-		base = math.Min(base, b)
+		g := 0.0
 		for _, l := range lad {
+			g += l.q * float64(l.first()*l.first())
+			qmin = math.Min(qmin, l.q)
+		}
+		lv.lad = append(lv.lad, lad)
+		ground = append(ground, g)
+		lv.base = math.Min(lv.base, g)
+	}
+	for vi, g := range ground {
+		lv.shift = append(lv.shift, g-lv.base)
+		// The max-th lowest level lies at or below each valley's own
+		// ε_i(first+max) with the other axes at their lowest.
+		for _, l := range lv.lad[vi] {
 			n := float64(l.first() + max)
-			bound = math.Min(bound, b-l.q*float64(l.first()*l.first())+l.q*n*n)
+			f := float64(l.first())
+			lv.bound = math.Min(lv.bound, lv.shift[vi]+l.q*(n*n-f*f))
 		}
 	}
-	cut := (base + frac*(bound-base)) * (1 + 1e-9)
-	for _, v := range c.Valleys {
-		lad := ladders(v)
+	lv.tol = 1e-10 * qmin
+	return lv, true
+}
+
+// tied reports whether two keys (a ≤ b) are one level.
+func (lv *levelWalk) tied(a, b float64) bool {
+	return b-a <= math.Max(lv.tol, 1e-12*b)
+}
+
+// distinct counts the levels among the states.
+func (lv *levelWalk) distinct(all []state) int {
+	k := make([]float64, len(all))
+	for i, s := range all {
+		k[i] = s.key
+	}
+	slices.Sort(k)
+	n := 0
+	for i := range k {
+		if i == 0 || !lv.tied(k[i-1], k[i]) {
+			n++
+		}
+	}
+	return n
+}
+
+// walk calls emit for every state with key ≤ frac·bound. It reports false
+// (and stops) when that is more than MaxListedStates states.
+func (lv *levelWalk) walk(ctx context.Context, frac float64, emit func(state)) (bool, error) {
+	cut := frac * lv.bound * (1 + 1e-9)
+	seen := 0
+	for vi, v := range lv.c.Valleys {
+		lad := lv.lad[vi]
 		idx := make([]int, len(lad))
-		var walk func(d int, g float64)
-		walk = func(d int, g float64) {
+		stop := false
+		var walk func(d int, x float64)
+		walk = func(d int, x float64) {
+			if stop {
+				return
+			}
 			if d == len(lad) {
-				w := v.Degeneracy * c.SpinDegeneracy
+				if seen++; seen > MaxListedStates || (seen%4096 == 0 && ctx.Err() != nil) {
+					stop = true
+					return
+				}
+				w := v.Degeneracy * lv.c.SpinDegeneracy
 				for i, l := range lad {
 					w *= int(l.weight(idx[i]))
 				}
-				emit(state{g: g, w: w, valley: v.Label, n: append([]int(nil), idx...)})
+				emit(state{key: x, w: w, valley: v.Label, n: append([]int(nil), idx...)})
 				return
 			}
-			// The rest of the axes add at least their lowest levels.
-			rest := lowest(lad[d+1:])
 			l := lad[d]
+			f := float64(l.first())
 			for n := l.first(); ; n++ {
-				e := g + l.q*float64(n)*float64(n)
-				if e+rest > cut {
+				e := x + l.q*(float64(n)*float64(n)-f*f)
+				if e > cut || stop {
 					break
 				}
 				idx[d] = n
 				walk(d+1, e)
 			}
 		}
-		walk(0, 0)
+		walk(0, lv.shift[vi])
+		if err := ctx.Err(); err != nil {
+			return false, err
+		}
+		if stop {
+			return false, nil
+		}
 	}
-	return true
+	return true, nil
 }

@@ -1,0 +1,156 @@
+package spectrum
+
+import (
+	"context"
+	"math"
+)
+
+// Costs of the plan's unit steps, in operations (an operation is a few
+// nanoseconds: one closed-form column is a square root and a compare).
+const (
+	opColumn      = 1  // one column counted in closed form along its third axis
+	opLookup      = 2  // one bucket lookup in a sorted column list
+	opListEntry   = 12 // building one list entry: generate, bucket-sort, merge, index
+	bytesPerEntry = 12 // energy (8) and its bucket (4); weighted lists add 8 for the running sum
+)
+
+// DefaultEvals is the number of N(E) evaluations NewCounter plans for.
+const DefaultEvals = 1000
+
+// MaxListBytes caps the sorted column list of one valley; a plan that
+// would need more counts its columns in closed form instead.
+const MaxListBytes = 256 << 20
+
+// Plan is the cheapest exact way found to count a conductor up to an energy
+// for a given number of N(E) evaluations, with its cost.
+//
+// With three confined axes there are two ways to count. Closed columns:
+// loop over the level pairs of two axes (the columns) and count the third,
+// the one with the most levels, in closed form (box ⌊√(γ/q)⌋, ring
+// 2⌊√(γ/q)⌋ + 1); nothing is built and each N(E) costs one step per
+// column, which is cheap for wires and lines (few columns, one long axis).
+// Sorted list: sort the column energies of two axes once and loop over
+// the third, one bucket lookup per level; the build costs about the list
+// and each N(E) about the third axis's levels, which is cheap for cubes
+// and films evaluated many times. Plan prices both (every choice of axes)
+// and keeps the cheaper within MaxListBytes.
+type Plan struct {
+	Ops   float64 // building the counter plus the evaluations
+	Bytes float64 // what the counter holds
+	c     Conductor
+	gmax  float64
+	v     []valleyPlan
+}
+
+type valleyPlan struct {
+	conf []ladder // ordered for the count; see valleyCounter
+	list bool     // three confined axes with a sorted list of conf[1], conf[2]
+}
+
+// NewPlan prices counting c up to emaxEV with evals evaluations of N(E).
+func NewPlan(c Conductor, emaxEV float64, evals int) Plan {
+	if err := c.Check(); err != nil {
+		panic(err.Error())
+	}
+	gmax := Gamma(math.Max(emaxEV, 0), c.AlphaPerEV) * (1 + 4*tieRel)
+	p := Plan{c: c, gmax: gmax}
+	e := float64(max(evals, 0))
+	for _, v := range c.Valleys {
+		var conf []ladder
+		open := 0
+		for i, a := range c.Axes {
+			if a.BC == Open {
+				open++
+				continue
+			}
+			conf = append(conf, ladder{q: quantumEV(a, v.MassM0[i]), ring: a.BC == Ring})
+		}
+		vp := valleyPlan{conf: conf}
+		// levels+1: an axis with no level below gmax still costs a step.
+		n := func(l ladder) float64 { return float64(l.levels(gmax)) + 1 }
+		switch len(conf) {
+		case 0:
+			p.Ops += e
+		case 1:
+			if open == 1 {
+				p.Ops += e * n(conf[0])
+			} else {
+				p.Ops += e
+			}
+		case 2:
+			// The outer loop runs over the axis with fewer levels.
+			if n(conf[0]) > n(conf[1]) {
+				vp.conf[0], vp.conf[1] = conf[1], conf[0]
+			}
+			if open == 0 {
+				p.Ops += e * n(vp.conf[0])
+			} else {
+				p.Ops += e * float64(pairs(vp.conf[0], vp.conf[1], gmax)+1)
+			}
+		case 3:
+			ops, bytes := vp.choose(gmax, e)
+			p.Ops += ops
+			p.Bytes += bytes
+		}
+		p.v = append(p.v, vp)
+	}
+	return p
+}
+
+// choose orders three confined ladders for the cheaper of the two plans.
+func (vp *valleyPlan) choose(gmax, evals float64) (ops, bytes float64) {
+	orig := [3]ladder(vp.conf)
+	best := math.Inf(1)
+	var bestConf [3]ladder
+	// k is the axis left out of the pair: the closed-form axis of the
+	// column plan or the outer axis of the list plan.
+	for k := 0; k < 3; k++ {
+		a, b := orig[(k+1)%3], orig[(k+2)%3]
+		if a.levels(gmax) > b.levels(gmax) {
+			a, b = b, a
+		}
+		cols := float64(pairs(a, b, gmax)) + 1
+		if c := evals * cols * opColumn; c < best {
+			best, bestConf, vp.list, bytes = c, [3]ladder{a, b, orig[k]}, false, 0
+		}
+		per := float64(bytesPerEntry)
+		if a.ring || b.ring {
+			per += 8
+		}
+		lb := cols * per
+		if lb > MaxListBytes {
+			continue
+		}
+		outer := float64(orig[k].levels(gmax)) + 1
+		if c := cols*opListEntry + evals*outer*opLookup; c < best {
+			best, bestConf, vp.list, bytes = c, [3]ladder{orig[k], a, b}, true, lb
+		}
+	}
+	vp.conf = bestConf[:]
+	return best, bytes
+}
+
+// pairs returns the number of level pairs (n_a, n_b) with ε_a + ε_b ≤ g
+// (not weighted), looping over a, the ladder with fewer levels.
+func pairs(a, b ladder, g float64) int {
+	s := 0
+	for i, top := a.first(), a.top(g); i <= top; i++ {
+		s += b.levels(g - a.q*float64(i)*float64(i))
+	}
+	return s
+}
+
+// Work estimates what counting c up to emaxEV costs: ops for building the
+// counter plus evals evaluations of N(E), and the bytes the counter holds,
+// for the plan NewPlan chooses. Callers compare it with a budget before
+// they build anything.
+func Work(c Conductor, emaxEV float64, evals int) (ops, bytes float64) {
+	p := NewPlan(c, emaxEV, evals)
+	return p.Ops, p.Bytes
+}
+
+// NewCounter prepares the counts of c for energies up to emaxEV with the
+// plan for DefaultEvals evaluations; see NewPlan and Plan.Counter.
+func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, error) {
+	return NewPlan(c, emaxEV, DefaultEvals).Counter(ctx)
+}

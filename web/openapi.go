@@ -82,7 +82,7 @@ var scenarioParams = map[string]apiParam{
 	"shape":  oaEnum("Line shape of the broadening. Default gaussian.", "gaussian", "lorentzian"),
 	"mfp":    oaStr("Mean free path λ: transmission T = λ/(λ + L) along the transport axis (Landauer–Büttiker). Default: ballistic." + lengthNote),
 	"at":     oaStr(fmt.Sprintf("Comma list of energies for point values (at most %d).%s Default: E_F.", scenario.MaxAt, energyNote)),
-	"budget": oaNum("Most states counted exactly; above it the count is the smooth (Weyl) asymptotic one with an error estimate.", 1, scenario.MaxBudget),
+	"budget": oaNum("Work budget of an exact count, in operations (about 3×10⁹ a second on one core): the cheapest exact plan of each variant is priced, and above the budget the count is the smooth (Weyl) asymptotic one with an error estimate.", 1, scenario.MaxBudget),
 }
 
 // sweepKeys are the keys a size sweep adds to the scenario keys (DESIGN's

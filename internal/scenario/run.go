@@ -3,6 +3,7 @@ package scenario
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"slices"
 
@@ -17,9 +18,13 @@ import (
 // Variants are the boundary-condition variants every result carries.
 var Variants = []string{"scenario", "box", "ring", "continuum"}
 
-// workBudget caps the operations of an exact count (building the column
-// lists and evaluating them); above it the count is asymptotic.
-const workBudget = 4e9
+// relTol is the relative accuracy of the thermal integrals; it sets the
+// width of the thermal window (thermal.WindowFor).
+const relTol = 1e-6
+
+// maxCounterBytes caps what the counters of one variant may hold; a plan
+// above it is asymptotic like one above the work budget.
+const maxCounterBytes = 512 << 20
 
 // PointValues are the counts at one energy.
 type PointValues struct {
@@ -83,6 +88,8 @@ type source struct {
 	along   int
 	smooth  bool    // the continuum: analytic throughout
 	evalOps float64 // cost of one N(E) evaluation
+	edge    float64 // N(E) is zero below this energy
+	modeEdge float64 // and M(E) below this
 	// weylStates and weylModes are the non-decreasing envelopes of the
 	// smooth counts that stand in for the exact ones above the budget.
 	weylStates, weylModes func(eEV float64) float64
@@ -201,7 +208,6 @@ func variants(c spectrum.Conductor) map[string]spectrum.Conductor {
 func Run(ctx context.Context, s Scenario) (*Result, error) {
 	res := &Result{Scenario: flatten(s.Values()), TempK: s.TempK, s: s}
 	c := s.Conductor()
-	kT := s.KTEV()
 	conds := variants(c)
 
 	// The highest energy anything asks for: the grid, the point values and
@@ -213,32 +219,29 @@ func Run(ctx context.Context, s Scenario) (*Result, error) {
 			return nil, err
 		}
 	}
-	top := math.Max(s.EmaxEV, ef+(thermal.DefaultWindowKT+1)*kT)
-	for _, e := range s.AtEV {
-		top = math.Max(top, e)
-	}
-	if s.HasDensity {
-		top = math.Max(top, 1.5*ef+0.05) + (thermal.DefaultWindowKT+1)*kT
-	}
-
-	srcs, method, err := build(ctx, s, conds, top)
+	sp := newSpan(s, conds, ef, true)
+	srcs, method, err := build(ctx, s, conds, sp)
 	if err != nil {
 		return nil, err
 	}
-	res.Method = method
+	res.Method = method.String()
 	res.ModesMethod = "exact"
 	if srcs["scenario"].modes == nil {
 		res.ModesMethod = "asymptotic"
 	}
-	if method == "asymptotic" {
+	if method.asymptotic {
 		e := smooth.ErrorEstimate(c, s.EmaxEV)
 		res.ErrorEstimate = &e
-		res.Notes = append(res.Notes, "More states than the exact budget: box, ring and scenario counts are the smooth (Weyl) counts, with the error estimate given.")
+		res.Notes = append(res.Notes, method.note(s.Budget))
 	}
 
 	if s.HasDensity {
-		if ef, err = solveFermiLevel(ctx, s, srcs["scenario"], top-(thermal.DefaultWindowKT+1)*kT); err != nil {
+		var note string
+		if ef, note, err = solveFermiLevel(ctx, s, srcs["scenario"], sp.solveHi); err != nil {
 			return nil, err
+		}
+		if note != "" {
+			res.Notes = append(res.Notes, note)
 		}
 	}
 	res.EFEV = ef
@@ -308,18 +311,15 @@ type Point struct {
 // counters cover just the thermal window around E_F.
 func Observe(ctx context.Context, s Scenario) (*Point, error) {
 	c := s.Conductor()
-	kT := s.KTEV()
 	conds := variants(c)
 	ef := s.EFEV
-	top := ef + (thermal.DefaultWindowKT+1)*kT
 	if s.HasDensity {
 		var err error
 		if ef, err = continuumFermiLevel(ctx, s, conds["continuum"]); err != nil {
 			return nil, err
 		}
-		top = 1.5*ef + 0.05 + 2*(thermal.DefaultWindowKT+1)*kT
 	}
-	top = math.Max(top, 1e-3)
+	sp := newSpan(s, conds, ef, false)
 	// The default broadening depends on the grid step: fix it before the
 	// grid shrinks to one point.
 	if s.EtaEV == 0 {
@@ -327,16 +327,16 @@ func Observe(ctx context.Context, s Scenario) (*Point, error) {
 	}
 	s.Points = 1
 	s.AtEV = nil
-	srcs, method, err := build(ctx, s, conds, top)
+	srcs, method, err := build(ctx, s, conds, sp)
 	if err != nil {
 		return nil, err
 	}
 	if s.HasDensity {
-		if ef, err = solveFermiLevel(ctx, s, srcs["scenario"], top-(thermal.DefaultWindowKT+1)*kT); err != nil {
+		if ef, _, err = solveFermiLevel(ctx, s, srcs["scenario"], sp.solveHi); err != nil {
 			return nil, err
 		}
 	}
-	p := &Point{EFEV: ef, Method: method, States: map[string]float64{}, Modes: map[string]float64{}}
+	p := &Point{EFEV: ef, Method: method.String(), States: map[string]float64{}, Modes: map[string]float64{}}
 	if p.Observables, err = observeAll(ctx, s, srcs, ef); err != nil {
 		return nil, err
 	}
@@ -385,24 +385,137 @@ func flatten(q map[string][]string) map[string]string {
 	return out
 }
 
-// build prepares the four variants, exact when the budget allows.
-func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor, top float64) (map[string]*source, string, error) {
-	method := "exact"
-	evals := s.Points + len(s.AtEV) + 3*thermal.DefaultMaxEvals/10
-	for _, name := range []string{"scenario", "box", "ring"} {
-		n, _ := smooth.Weyl(conds[name], top)
-		ops, _ := spectrum.Work(conds[name], top, evals)
-		if n > s.Budget || ops > workBudget {
-			method = "asymptotic"
+// span is the energy range a run reads. The thermal integrals of a variant
+// read up to max(E_F, edge) + W·k_BT (W from relTol; the edge is the
+// variant's lowest level, where the window starts when E_F is below it).
+// With curves the range also covers emax (and the line shape's reach
+// beyond it, for a broadened D(E)) and the at energies. Nothing else sets
+// it: emax alone never moves the observables.
+type span struct {
+	ef      float64 // the highest E_F the integrals are centred on
+	solveHi float64 // with a density: E_F is looked for below this
+	curves  float64 // the top of the curves and point values (0 without)
+	w       float64 // the thermal window above E_F
+	kT      float64
+	along   int
+}
+
+func newSpan(s Scenario, conds map[string]spectrum.Conductor, ef float64, curves bool) span {
+	sp := span{ef: ef, w: thermal.WindowFor(relTol) * s.KTEV(), kT: s.KTEV(), along: s.Along}
+	if s.HasDensity {
+		// The bulk E_F at the same density shifted by the scenario's
+		// confinement, with room: the solve brackets below it.
+		sp.solveHi = 1.5*math.Max(ef, 0) + conds["scenario"].Edge() + 0.05
+		sp.ef = sp.solveHi
+	}
+	if curves {
+		sp.curves = s.EmaxEV
+		if s.Conductor().Confined() {
+			sp.curves += spectrum.Reach(s.Eta(), s.Shape)
+		}
+		for _, e := range s.AtEV {
+			sp.curves = math.Max(sp.curves, e)
+		}
+	}
+	return sp
+}
+
+// top returns the highest energy the run reads on conductor c: its states
+// and its modes, which start at the transverse edge.
+func (sp span) top(c spectrum.Conductor) float64 {
+	t := math.Max(sp.thermal(c.Edge()), sp.thermal(c.Transverse(sp.along).Edge()))
+	return math.Max(math.Max(t, sp.curves), 1e-3)
+}
+
+// thermal returns the top of the thermal window for a curve that starts at
+// edge: none above E_F when the occupation at the edge underflows
+// (thermal.Underflows), where the integrals are exactly zero.
+func (sp span) thermal(edge float64) float64 {
+	if sp.ef < edge && (sp.kT == 0 || thermal.Underflows(edge, sp.ef, sp.kT)) {
+		return sp.ef
+	}
+	return math.Max(sp.ef, edge) + sp.w
+}
+
+// method says how a run counted: exact, or asymptotic because the cheapest
+// exact plan of some variant was over the budget.
+type method struct {
+	asymptotic bool
+	ops, bytes float64 // the dearest variant's plan
+	variant    string
+}
+
+func (m method) String() string {
+	if m.asymptotic {
+		return "asymptotic"
+	}
+	return "exact"
+}
+
+func (m method) note(budget float64) string {
+	why := fmt.Sprintf("its cheapest exact plan needs about %.2g operations, over the budget of %.2g", m.ops, budget)
+	if m.bytes > maxCounterBytes {
+		why = fmt.Sprintf("its cheapest exact plan would hold %.0f MB, over %d MB", m.bytes/1e6, maxCounterBytes>>20)
+	}
+	return "Asymptotic: the exact " + m.variant + " count is too dear (" + why + "), so box, ring and scenario counts are the smooth (Weyl) counts, with the error estimate given."
+}
+
+// evals estimates the N(E) evaluations a run makes on one variant: the
+// curves and point values, the bins of a broadened D(E), and the thermal
+// integrals at the cap the integrator puts on them (and some forty more
+// for a Fermi level solved from a density).
+func evals(s Scenario, c spectrum.Conductor, evalOps float64) int {
+	n := s.Points + len(s.AtEV) + 2
+	if c.Confined() {
+		n += 16_384
+	}
+	integrals := 0
+	if s.KTEV() > 0 {
+		integrals = 3
+	}
+	if s.HasDensity {
+		integrals += 40
+	}
+	return n + integrals*maxEvals(evalOps)
+}
+
+// plan prices the exact count of one variant (states and, along the
+// transport axis, modes) with the evaluations a run makes.
+func plan(s Scenario, c spectrum.Conductor, top float64) (states, modes spectrum.Plan, modesExact bool) {
+	per := spectrum.NewPlan(c, top, spectrum.DefaultEvals).PerEval
+	states = spectrum.NewPlan(c, top, evals(s, c, per))
+	// A conductor with one axis has a transverse conductor of none: one
+	// mode per valley and spin above the edge.
+	tr := c.Transverse(s.Along)
+	per = spectrum.NewPlan(tr, top, spectrum.DefaultEvals).PerEval
+	modes = spectrum.NewPlan(tr, top, evals(s, tr, per))
+	modesExact = modes.Ops <= s.Budget && modes.Bytes <= maxCounterBytes
+	return states, modes, modesExact
+}
+
+// build prepares the four variants, exact when the cheapest exact plan of
+// each of scenario, box and ring is within the budget (in operations) and
+// the memory cap.
+func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor, sp span) (map[string]*source, method, error) {
+	var m method
+	plans := map[string][2]spectrum.Plan{}
+	exactModes := map[string]bool{}
+	for _, name := range Variants {
+		st, md, ok := plan(s, conds[name], sp.top(conds[name]))
+		plans[name], exactModes[name] = [2]spectrum.Plan{st, md}, ok
+		if name == "continuum" {
+			continue
+		}
+		if st.Ops > m.ops || st.Bytes > maxCounterBytes {
+			m.ops, m.bytes, m.variant = st.Ops, st.Bytes, name
+		}
+		if st.Ops > s.Budget || st.Bytes > maxCounterBytes {
+			m.asymptotic = true
 		}
 	}
 	srcs := map[string]*source{}
 	var g errgroup.Group
 	g.SetLimit(4)
-	type job struct {
-		name string
-		src  *source
-	}
 	// Equal conductors share one source.
 	byKey := map[string]*source{}
 	for _, name := range Variants {
@@ -412,35 +525,37 @@ func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor,
 			srcs[name] = src
 			continue
 		}
-		src := &source{cond: cond, along: s.Along, smooth: name == "continuum"}
+		src := &source{cond: cond, along: s.Along, smooth: name == "continuum", edge: cond.Edge()}
+		top := sp.top(cond)
 		byKey[key] = src
 		srcs[name] = src
-		exactStates := method == "exact" || name == "continuum"
-		tr := cond.Transverse(s.Along)
-		modeOps := 0.0
-		if len(tr.Axes) > 0 {
-			modeOps, _ = spectrum.Work(tr, top, evals)
-		}
-		exactModes := modeOps <= workBudget
+		exactStates := !m.asymptotic || name == "continuum"
 		if !exactStates {
 			src.weylStates = smooth.Monotone(func(e float64) float64 { n, _ := smooth.Weyl(cond, e); return n }, top)
+			// The smooth count starts at the band edge, not at the lowest level.
+			src.edge = 0
 		}
-		if !exactModes {
+		if tr := cond.Transverse(s.Along); len(tr.Axes) > 0 && exactModes[name] {
+			src.modeEdge = tr.Edge()
+		}
+		if !exactModes[name] {
 			src.weylModes = smooth.Monotone(func(e float64) float64 { return smooth.WeylModes(cond, s.Along, e) }, top)
 		}
-		ops1, _ := spectrum.Work(cond, top, 1)
-		ops0, _ := spectrum.Work(cond, top, 0)
-		src.evalOps = ops1 - ops0
+		p := plans[name]
+		src.evalOps = p[0].PerEval
+		if !exactStates {
+			src.evalOps = 1
+		}
 		g.Go(func() error {
 			if exactStates {
-				k, err := spectrum.NewCounter(ctx, cond, top)
+				k, err := p[0].Counter(ctx)
 				if err != nil {
 					return err
 				}
 				src.states = k
 			}
-			if exactModes {
-				k, err := spectrum.NewCounter(ctx, tr, top)
+			if exactModes[name] {
+				k, err := p[1].Counter(ctx)
 				if err != nil {
 					return err
 				}
@@ -450,9 +565,9 @@ func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor,
 		})
 	}
 	if err := g.Wait(); err != nil {
-		return nil, "", canceled(err)
+		return nil, m, canceled(err)
 	}
-	return srcs, method, nil
+	return srcs, m, nil
 }
 
 func bcKey(c spectrum.Conductor) string {
@@ -569,11 +684,16 @@ func points(ctx context.Context, s Scenario, srcs map[string]*source, at []float
 // staircases and continuous curves stop at the cap, where the centred
 // estimate is far better than its rigorous first-order bound.
 func (v *source) integrator() thermal.Integrator {
-	maxEvals := 2000.0
-	if v.evalOps > 0 {
-		maxEvals = math.Min(maxEvals, math.Max(300, 3e7/v.evalOps))
+	return thermal.Integrator{RelTol: relTol, MaxEvals: maxEvals(v.evalOps), Edge: v.edge, HasEdge: true}
+}
+
+// maxEvals caps the evaluations of one thermal average by the cost of one.
+func maxEvals(evalOps float64) int {
+	n := 2000.0
+	if evalOps > 0 {
+		n = math.Min(n, math.Max(300, 3e7/evalOps))
 	}
-	return thermal.Integrator{RelTol: 1e-6, MaxEvals: int(maxEvals)}
+	return int(n)
 }
 
 func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observables, error) {
@@ -588,7 +708,9 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	vol := v.cond.Volume() * math.Pow(100, float64(s.Dims))
 	o.VolumeDensity = o.Electrons / vol
 	o.VolumeDensityUnit = [...]string{"", "cm^-1", "cm^-2", "cm^-3"}[s.Dims]
-	if o.MeanModes, err = average(ctx, in, v.modeCurve, ef, kT); err != nil {
+	inModes := in
+	inModes.Edge = v.modeEdge
+	if o.MeanModes, err = average(ctx, inModes, v.modeCurve, ef, kT); err != nil {
 		return o, err
 	}
 	o.Transmission = 1
@@ -645,12 +767,17 @@ func continuumFermiLevel(ctx context.Context, s Scenario, cont spectrum.Conducto
 		}
 		hi *= 2
 	}
-	lo := -40*kT - 1e-3
-	ef, err := thermal.SolveFermiLevel(ctx, func(ctx context.Context, e float64) (float64, error) {
-		// This E_F only sets the range the exact counters cover: 1e-6 will do.
-		v, err := average(ctx, thermal.Integrator{RelTol: 1e-6, MaxEvals: 400}, src.stateCurve, e, kT)
+	// This E_F only sets the range the exact counters cover: 1e-6 will do.
+	in := thermal.Integrator{RelTol: relTol, MaxEvals: 400, HasEdge: true}
+	density := func(ctx context.Context, e float64) (float64, error) {
+		v, err := average(ctx, in, src.stateCurve, e, kT)
 		return v * scale, err
-	}, s.Density, lo, hi)
+	}
+	lo, err := bracketBelow(ctx, s, density, 0)
+	if err != nil {
+		return 0, err
+	}
+	ef, err := thermal.SolveFermiLevel(ctx, density, s.Density, lo, hi)
 	if err != nil {
 		if errors.Is(err, thermal.ErrOutsideBracket) {
 			return 0, Errorf("density", "density %g %s needs a Fermi level above %g eV", s.Density, s.DensityUnit(), hi)
@@ -660,19 +787,92 @@ func continuumFermiLevel(ctx context.Context, s Scenario, cont spectrum.Conducto
 	return ef, nil
 }
 
-func solveFermiLevel(ctx context.Context, s Scenario, v *source, hi float64) (float64, error) {
+// bracketBelow returns an energy where the density is below the target:
+// just below the edge, then in steps of 40 k_BT into the Boltzmann tail,
+// where the density falls by e^(−40) a step, down to 720 k_BT below the
+// edge (e^(−720) is near the smallest float).
+func bracketBelow(ctx context.Context, s Scenario, density func(context.Context, float64) (float64, error), edge float64) (float64, error) {
+	kT := s.KTEV()
+	lo := edge - 1e-3
+	for step := 0; ; step++ {
+		n, err := density(ctx, lo)
+		if err != nil {
+			return 0, canceled(err)
+		}
+		if n < s.Density {
+			return lo, nil
+		}
+		if step == 18 || kT == 0 {
+			return 0, Errorf("density", "density %g %s is below e^(−720) of the band's effective density: too small to place a Fermi level", s.Density, s.DensityUnit())
+		}
+		lo -= 40 * kT
+	}
+}
+
+// solveFermiLevel returns the scenario's E_F for its density and, where
+// the answer needs one, a note. At T = 0 in a fully confined conductor the
+// electrons come in steps of one level's degeneracy: E_F is the level that
+// holds the last electron, and the electrons are those the levels up to it
+// hold.
+func solveFermiLevel(ctx context.Context, s Scenario, v *source, hi float64) (float64, string, error) {
 	kT := s.KTEV()
 	scale := s.densityScale()
+	if kT == 0 && v.cond.Confined() {
+		ef, err := lastLevel(ctx, s.Density/scale, v, hi)
+		if err != nil {
+			return 0, "", err
+		}
+		return ef, "At T = 0 in a fully confined conductor the density comes in steps of one level's degeneracy: E_F is the level that holds the last electron, and the electrons shown are those the levels up to it hold.", nil
+	}
 	in := v.integrator()
-	ef, err := thermal.SolveFermiLevel(ctx, func(ctx context.Context, e float64) (float64, error) {
+	density := func(ctx context.Context, e float64) (float64, error) {
 		n, err := average(ctx, in, v.stateCurve, e, kT)
 		return n * scale, err
-	}, s.Density, -40*kT-1e-3, hi)
+	}
+	lo, err := bracketBelow(ctx, s, density, v.edge)
+	if err != nil {
+		return 0, "", err
+	}
+	ef, err := thermal.SolveFermiLevel(ctx, density, s.Density, lo, hi)
 	if err != nil {
 		if errors.Is(err, thermal.ErrOutsideBracket) {
-			return 0, Errorf("density", "density %g %s is not reached below %.3g eV with these boundary conditions", s.Density, s.DensityUnit(), hi)
+			return 0, "", Errorf("density", "density %g %s is not reached below %.3g eV with these boundary conditions", s.Density, s.DensityUnit(), hi)
 		}
-		return 0, canceled(err)
+		return 0, "", canceled(err)
 	}
-	return ef, nil
+	return ef, "", nil
+}
+
+// lastLevel returns the lowest energy E ≤ hi with N(E) ≥ electrons: the
+// level holding the last electron, found by bisection to 1e-12 relative
+// and returned from above, so that N(E) counts it.
+func lastLevel(ctx context.Context, electrons float64, v *source, hi float64) (float64, error) {
+	n := []float64{0}
+	at := func(e float64) (float64, error) {
+		n[0] = e
+		err := v.stateCurve(ctx, n, n)
+		return n[0], canceled(err)
+	}
+	if c, err := at(hi); err != nil {
+		return 0, err
+	} else if c < electrons {
+		return 0, Errorf("density", "density %g needs more than the %g states below %.3g eV", electrons, c, hi)
+	}
+	lo := v.edge - 1e-3
+	for hi-lo > 1e-12*math.Max(1, math.Abs(hi)) {
+		mid := lo + (hi-lo)/2
+		if mid <= lo || mid >= hi {
+			break
+		}
+		c, err := at(mid)
+		if err != nil {
+			return 0, err
+		}
+		if c >= electrons {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return hi, nil
 }

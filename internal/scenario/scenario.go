@@ -23,7 +23,7 @@ const (
 	MaxEnergyEV   = 1000
 	MinEnergyEV   = -10
 	MaxTempK      = 5000
-	DefaultBudget = 2e10 // states below the top energy; above it the count is asymptotic
+	DefaultBudget = 2e10 // operations of the cheapest exact plan; above it the count is asymptotic
 	MaxBudget     = 1e12
 )
 

@@ -16,7 +16,6 @@ import (
 	"ringbox/internal/smooth"
 	"ringbox/internal/spectrum"
 	"ringbox/internal/sweep"
-	"ringbox/internal/thermal"
 )
 
 // SweepKeys are the keys a size sweep adds to the scenario keys.
@@ -265,44 +264,27 @@ func (sw Sweep) Unit() string {
 	return "count"
 }
 
-// Work estimates the operations of the whole sweep. For each step and
-// each of the scenario, box and ring variants it adds what Observe spends:
-// building the exact counters (states, and the transverse counter of the
-// modes) and the thermal integrals on them — two on the states curve
-// (electrons, C_Q), one on the modes curve, each capped as
-// (*source).integrator caps it, and some fifty more on the states curve
-// when E_F is solved from a density. A step beyond the exact budget is
-// asymptotic and nearly free.
+// Work estimates the operations of the whole sweep: for each step and each
+// of the scenario, box and ring variants, the plans Observe would run
+// (plan: the counters and their evaluations, thermal integrals and a
+// density solve included). A step beyond the exact budget is asymptotic
+// and nearly free.
 func (sw Sweep) Work() float64 {
 	total := 0.0
-	integral := func(evalOps float64) float64 {
-		return math.Min(2000*evalOps, math.Max(3e7, 300*evalOps))
-	}
-	counter := func(c spectrum.Conductor, top float64) (build, integ float64) {
-		ops0, _ := spectrum.Work(c, top, 0)
-		ops1, _ := spectrum.Work(c, top, 1)
-		return ops0, integral(ops1 - ops0)
-	}
 	for _, l := range sw.Lengths() {
 		s := sw.At(l)
-		top := observeTop(s)
-		c := s.Conductor()
+		s.Points, s.AtEV = 1, nil
+		conds := variants(s.Conductor())
+		sp := newSpan(s, conds, bulkFermiBound(s), false)
 		step, exact := 0.0, true
-		for _, v := range []spectrum.Conductor{c, c.WithBC(spectrum.Box), c.WithBC(spectrum.Ring)} {
-			n, _ := smooth.Weyl(v, top)
-			build, integ := counter(v, top)
-			if n > s.Budget || build > workBudget {
+		for _, name := range []string{"scenario", "box", "ring"} {
+			st, md, modesExact := plan(s, conds[name], sp.top(conds[name]))
+			if st.Ops > s.Budget || st.Bytes > maxCounterBytes {
 				exact = false
 			}
-			calls := 2.0
-			if s.HasDensity {
-				calls += 50
-			}
-			step += build + calls*integ
-			if tr := v.Transverse(s.Along); len(tr.Axes) > 0 {
-				if mb, mi := counter(tr, top); mb <= workBudget {
-					step += mb + mi
-				}
+			step += st.Ops
+			if modesExact {
+				step += md.Ops
 			}
 		}
 		if !exact {
@@ -313,14 +295,12 @@ func (sw Sweep) Work() float64 {
 	return total
 }
 
-// observeTop bounds from above the highest energy Observe counts to: with a
-// density, E_F is taken from the continuum at T = 0, which is above the
-// Fermi level at any T.
-func observeTop(s Scenario) float64 {
-	kT := s.KTEV()
-	w := (thermal.DefaultWindowKT + 1) * kT
+// bulkFermiBound bounds from above the E_F Observe starts from: the
+// scenario's, or with a density the continuum's at T = 0, which is above
+// the Fermi level at any T.
+func bulkFermiBound(s Scenario) float64 {
 	if !s.HasDensity {
-		return math.Max(s.EFEV+w, 1e-3)
+		return s.EFEV
 	}
 	cont := s.Conductor().Continuum()
 	scale := s.densityScale()
@@ -336,7 +316,7 @@ func observeTop(s Scenario) float64 {
 			hi = mid
 		}
 	}
-	return math.Max(1.5*hi+0.05+2*w, 1e-3)
+	return hi
 }
 
 // SweepResult is a finished sweep, the same for the CLI, the API and the

@@ -5,6 +5,7 @@ package smooth
 
 import (
 	"math"
+	"slices"
 
 	"ringbox/internal/phys"
 	"ringbox/internal/spectrum"
@@ -106,15 +107,19 @@ func WeylModes(c spectrum.Conductor, along int, eEV float64) float64 {
 	return n
 }
 
-// ErrorEstimate returns a typical size of |N(E) − N̄(E)|, the lattice-point
+// ErrorEstimate returns a bound on |N(E) − N̄(E)|, the lattice-point
 // remainder left after Weyl's terms, for reporting with an asymptotic count.
-// For an ellipsoid of lattice radius R in d confined dimensions the remainder
-// grows like R^((d−1)/2) (Landau's bound for generic ellipsoids; Hardy's
-// circle problem in 2D; ±½ for a 1D box), times the open axes' own volume
-// factor. A logarithmic allowance, 4(1 + ln R), covers the rational
-// (degenerate) shapes such as cubes and cubic rings, whose shells hold ~2πR
-// states each in 3D; in 1D the remainder is below 1 per spin and valley. The
-// tests check the estimate against exact counts.
+// With the confined axes' lattice radii R₁ ≤ R₂ ≤ … (R = kL/π box, kL/2π
+// ring) the remainder is the Euler–Maclaurin sawtooth of the sum over the
+// thinnest axis of the count of the others, of size Π_{i≥2} Rᵢ / R₁^((d−1)/2):
+// for an isotropic ellipsoid that is R^((d−1)/2) (Landau's bound for
+// generic ellipsoids; Hardy's circle problem in 2D), and for a film or a
+// wire it is the cross-section the thin axis cuts in steps, which no
+// isotropic bound covers. A logarithmic allowance, 4(1 + ln R_max), covers
+// the rational (degenerate) shapes such as cubes and cubic rings; the open
+// axes multiply by their own volume factor; in 1D the remainder is below 1
+// per spin and valley. The tests check the estimate against exact counts
+// of films, lines, wires and cubes.
 func ErrorEstimate(c spectrum.Conductor, eEV float64) float64 {
 	g := spectrum.Gamma(eEV, c.AlphaPerEV)
 	if g <= 0 {
@@ -122,31 +127,32 @@ func ErrorEstimate(c spectrum.Conductor, eEV float64) float64 {
 	}
 	var est float64
 	for _, v := range c.Valleys {
-		logR, dc := 0.0, 0
+		var radii []float64
 		open := 1.0
 		do := 0
 		for i, a := range c.Axes {
 			k := phys.KOf(g, v.MassM0[i])
 			switch a.BC {
 			case spectrum.Box:
-				logR += math.Log(math.Max(k*a.LengthM/math.Pi, 1))
-				dc++
+				radii = append(radii, math.Max(k*a.LengthM/math.Pi, 1))
 			case spectrum.Ring:
-				logR += math.Log(math.Max(k*a.LengthM/(2*math.Pi), 1))
-				dc++
+				radii = append(radii, math.Max(k*a.LengthM/(2*math.Pi), 1))
 			default:
 				open *= k * a.LengthM / (2 * math.Pi)
 				do++
 			}
 		}
-		if dc == 0 {
+		if len(radii) == 0 {
 			continue
 		}
 		open *= unitBall(do)
-		r := math.Exp(logR / float64(dc))
+		slices.Sort(radii)
 		f := 1.0
-		if dc > 1 {
-			f = 4 * (1 + math.Log(r)) * math.Pow(r, float64(dc-1)/2)
+		if dc := len(radii); dc > 1 {
+			f = 4 * (1 + math.Log(radii[dc-1])) * math.Pow(radii[0], -float64(dc-1)/2)
+			for _, r := range radii[1:] {
+				f *= r
+			}
 		}
 		est += float64(c.SpinDegeneracy*v.Degeneracy) * math.Max(open, 1) * f
 	}

@@ -160,6 +160,27 @@ func (c Conductor) Confined() bool {
 	return true
 }
 
+// Edge returns the lowest energy that holds a state, in eV: the lowest level
+// of every confined axis added up, lowest over the valleys (0 when no axis
+// is confined). N(E) is zero below it.
+func (c Conductor) Edge() float64 {
+	edge := math.Inf(1)
+	for _, v := range c.Valleys {
+		g := 0.0
+		for i, a := range c.Axes {
+			switch a.BC {
+			case Box:
+				g += quantumEV(a, v.MassM0[i])
+			}
+		}
+		edge = math.Min(edge, g)
+	}
+	if math.IsInf(edge, 1) {
+		return 0
+	}
+	return Energy(edge, c.AlphaPerEV)
+}
+
 // Volume returns the product of the axis lengths in m^dims.
 func (c Conductor) Volume() float64 {
 	v := 1.0

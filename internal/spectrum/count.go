@@ -444,7 +444,7 @@ func (k *Counter) States(ctx context.Context, energiesEV, out []float64) error {
 
 // ascendingColumns reports whether the galloping batch path applies.
 func (k *Counter) ascendingColumns(energiesEV []float64) bool {
-	if len(energiesEV) < 8 {
+	if len(energiesEV) < 8 || len(k.valleys) == 0 {
 		return false
 	}
 	for _, v := range k.valleys {

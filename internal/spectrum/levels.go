@@ -118,6 +118,17 @@ const (
 	Lorentzian
 )
 
+// Reach returns how far from a level its broadened peak is summed: 6η for
+// a Gaussian (below 1.6e-8 of its peak there), 64η for a Lorentzian. A
+// broadened D(E) up to E reads the levels up to E + Reach: the counter must
+// cover them.
+func Reach(etaEV float64, shape Shape) float64 {
+	if shape == Lorentzian {
+		return 64 * etaEV
+	}
+	return 6 * etaEV
+}
+
 // maxEnumerated is the number of states below which Broadened sums one
 // exact peak per level; above it the levels are binned first.
 const maxEnumerated = 100_000
@@ -142,10 +153,7 @@ func (k *Counter) Broadened(ctx context.Context, energiesEV []float64, etaEV flo
 	if !(etaEV > 0) {
 		panic("spectrum: broadening must be positive")
 	}
-	reach := 6 * etaEV // the Gaussian is below 1.6e-8 of its peak there
-	if shape == Lorentzian {
-		reach = 64 * etaEV
-	}
+	reach := Reach(etaEV, shape)
 	lo, hi := energiesEV[0], energiesEV[0]
 	for _, e := range energiesEV {
 		lo, hi = math.Min(lo, e), math.Max(hi, e)

@@ -35,8 +35,9 @@ const MaxListBytes = 256 << 20
 // and films evaluated many times. Plan prices both (every choice of axes)
 // and keeps the cheaper within MaxListBytes.
 type Plan struct {
-	Ops   float64 // building the counter plus the evaluations
-	Bytes float64 // what the counter holds
+	Ops     float64 // building the counter plus the evaluations
+	PerEval float64 // one evaluation of N(E)
+	Bytes   float64 // what the counter holds
 	c     Conductor
 	gmax  float64
 	v     []valleyPlan
@@ -68,37 +69,37 @@ func NewPlan(c Conductor, emaxEV float64, evals int) Plan {
 		vp := valleyPlan{conf: conf}
 		// levels+1: an axis with no level below gmax still costs a step.
 		n := func(l ladder) float64 { return float64(l.levels(gmax)) + 1 }
+		per := 1.0
 		switch len(conf) {
-		case 0:
-			p.Ops += e
 		case 1:
 			if open == 1 {
-				p.Ops += e * n(conf[0])
-			} else {
-				p.Ops += e
+				per = n(conf[0])
 			}
 		case 2:
 			// The outer loop runs over the axis with fewer levels.
 			if n(conf[0]) > n(conf[1]) {
 				vp.conf[0], vp.conf[1] = conf[1], conf[0]
 			}
-			if open == 0 {
-				p.Ops += e * n(vp.conf[0])
-			} else {
-				p.Ops += e * float64(pairs(vp.conf[0], vp.conf[1], gmax)+1)
+			per = n(vp.conf[0])
+			if open > 0 {
+				per = pairs(vp.conf[0], vp.conf[1], gmax) + 1
 			}
 		case 3:
-			ops, bytes := vp.choose(gmax, e)
-			p.Ops += ops
+			build, bytes, pe := vp.choose(gmax, e)
+			p.Ops += build
 			p.Bytes += bytes
+			per = pe
 		}
+		p.Ops += e * per
+		p.PerEval += per
 		p.v = append(p.v, vp)
 	}
 	return p
 }
 
-// choose orders three confined ladders for the cheaper of the two plans.
-func (vp *valleyPlan) choose(gmax, evals float64) (ops, bytes float64) {
+// choose orders three confined ladders for the cheaper of the two plans
+// and returns its build cost, bytes and cost per evaluation.
+func (vp *valleyPlan) choose(gmax, evals float64) (build, bytes, perEval float64) {
 	orig := [3]ladder(vp.conf)
 	best := math.Inf(1)
 	var bestConf [3]ladder
@@ -109,9 +110,10 @@ func (vp *valleyPlan) choose(gmax, evals float64) (ops, bytes float64) {
 		if a.levels(gmax) > b.levels(gmax) {
 			a, b = b, a
 		}
-		cols := float64(pairs(a, b, gmax)) + 1
+		cols := pairs(a, b, gmax) + 1
 		if c := evals * cols * opColumn; c < best {
-			best, bestConf, vp.list, bytes = c, [3]ladder{a, b, orig[k]}, false, 0
+			best, bestConf, vp.list = c, [3]ladder{a, b, orig[k]}, false
+			build, bytes, perEval = 0, 0, cols*opColumn
 		}
 		per := float64(bytesPerEntry)
 		if a.ring || b.ring {
@@ -123,22 +125,33 @@ func (vp *valleyPlan) choose(gmax, evals float64) (ops, bytes float64) {
 		}
 		outer := float64(orig[k].levels(gmax)) + 1
 		if c := cols*opListEntry + evals*outer*opLookup; c < best {
-			best, bestConf, vp.list, bytes = c, [3]ladder{orig[k], a, b}, true, lb
+			best, bestConf, vp.list = c, [3]ladder{orig[k], a, b}, true
+			build, bytes, perEval = cols*opListEntry, lb, outer*opLookup
 		}
 	}
 	vp.conf = bestConf[:]
-	return best, bytes
+	return build, bytes, perEval
 }
 
-// pairs returns the number of level pairs (n_a, n_b) with ε_a + ε_b ≤ g
-// (not weighted), looping over a, the ladder with fewer levels.
-func pairs(a, b ladder, g float64) int {
+// pairs returns the number of level pairs (n_a, n_b ≥ first) with
+// ε_a + ε_b ≤ g (not weighted): counted when a, the ladder with fewer
+// levels, has at most exactPairs, else the quarter-ellipse area π/4·R_a·R_b
+// (R = √(g/q)) plus both axes, which bounds it from above (Gauss's circle
+// problem; common practice).
+func pairs(a, b ladder, g float64) float64 {
+	if a.levels(g) > exactPairs {
+		ra, rb := math.Sqrt(g/a.q), math.Sqrt(g/b.q)
+		return math.Pi/4*ra*rb + ra + rb + 1
+	}
 	s := 0
 	for i, top := a.first(), a.top(g); i <= top; i++ {
 		s += b.levels(g - a.q*float64(i)*float64(i))
 	}
-	return s
+	return float64(s)
 }
+
+// exactPairs is the level count up to which pairs counts exactly.
+const exactPairs = 1 << 14
 
 // Work estimates what counting c up to emaxEV costs: ops for building the
 // counter plus evals evaluations of N(E), and the bytes the counter holds,

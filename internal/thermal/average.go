@@ -16,7 +16,7 @@ type Curve func(ctx context.Context, energiesEV, out []float64) error
 
 // Defaults of Integrator; the zero Integrator uses them.
 const (
-	DefaultWindowKT = 40    // half-width of the thermal window, in k_BT
+	DefaultWindowKT = 40    // widest half-width of the thermal window, in k_BT
 	DefaultRelTol   = 1e-9  // target relative error bound
 	DefaultMaxEvals = 20000 // cap on curve evaluations per integral
 	initialCells    = 32    // uniform cells on each side of E_F to start
@@ -53,10 +53,38 @@ const (
 // E_F + W·k_BT are dropped (each would add at most e^(−W) times its
 // degeneracy), and below E_F − W·k_BT everything is fully occupied.
 type Integrator struct {
-	WindowKT float64 // half-width of the window in k_BT (default 40)
+	WindowKT float64 // half-width of the window in k_BT (default WindowFor(RelTol) with an edge, else 40)
 	RelTol   float64 // relative tolerance of the error bound (default 1e-9)
 	AbsTol   float64 // absolute tolerance, in the units of the result (default: floor only)
 	MaxEvals int     // cap on curve evaluations (default 20 000)
+	// With HasEdge the curve is zero below Edge (a band edge or the lowest
+	// level): the window starts there when E_F − W·k_BT is below it and
+	// ends at max(E_F, Edge) + W·k_BT, so a Fermi level far below the edge
+	// (the Boltzmann tail) keeps its relative accuracy and nothing below
+	// the edge is integrated.
+	Edge    float64
+	HasEdge bool
+}
+
+// Underflows reports whether the occupation e^(−(E − E_F)/k_BT) at and
+// above edge is below the smallest float64 (E − E_F > 745 k_BT): a curve
+// that starts at edge then integrates to exactly zero in floating point.
+func Underflows(edge, efEV, kTEV float64) bool {
+	return edge-efEV > 745*kTEV
+}
+
+// WindowFor returns the half-width of the thermal window, in k_BT, that
+// keeps the weight outside it below the relative tolerance: beyond
+// E_F + W·k_BT the occupation is below e^(−W), and a density of states
+// that grows like a power of the energy adds at most a factor of order W
+// (the incomplete gamma function Γ(s, W) ≈ W^(s−1)e^(−W)); W = ln(1/tol) + 3
+// covers powers up to 1 (modes of a 3D conductor): 16.8 at 1e-6, 23.7 at
+// 1e-9 (common practice). It lies between 8 and DefaultWindowKT.
+func WindowFor(relTol float64) float64 {
+	if !(relTol > 0) {
+		relTol = DefaultRelTol
+	}
+	return math.Min(math.Max(math.Log(1/relTol)+3, 8), DefaultWindowKT)
 }
 
 // Estimate is the result of one thermal average.
@@ -108,10 +136,14 @@ func (in Integrator) Occupied(ctx context.Context, c Curve, efEV, kTEV float64) 
 		return Estimate{}, err
 	}
 	// ∫ c(−f′)dE = c(lo) + ∫_(lo,∞) f dc − ∫_(−∞,lo) (1−f) dc; the two
-	// outer pieces carry weights below e^(−W).
+	// outer pieces carry weights below e^(−W). From the edge, c(lo) is the
+	// jump at lo and carries f(lo).
 	tail := (1-w(r.lo))*math.Abs(r.cLo) + w(r.hi)*math.Abs(r.cHi)
+	if r.atEdge {
+		tail = w(r.hi) * math.Abs(r.cHi)
+	}
 	return Estimate{
-		Value:     r.cLo + r.sum,
+		Value:     r.base + r.sum,
 		ErrBound:  r.bound + tail,
 		Evals:     r.evals,
 		Converged: r.converged,
@@ -137,7 +169,10 @@ func (in Integrator) Slope(ctx context.Context, c Curve, efEV, kTEV float64) (Es
 		return Estimate{}, err
 	}
 	tail := w(r.lo)*math.Abs(r.cLo) + w(r.hi)*math.Abs(r.cHi)
-	return Estimate{Value: r.sum, ErrBound: r.bound + tail, Evals: r.evals, Converged: r.converged}, nil
+	if r.atEdge {
+		tail = w(r.hi) * math.Abs(r.cHi)
+	}
+	return Estimate{Value: r.base + r.sum, ErrBound: r.bound + tail, Evals: r.evals, Converged: r.converged}, nil
 }
 
 func checkArgs(efEV, kTEV float64) error {
@@ -154,11 +189,16 @@ func checkArgs(efEV, kTEV float64) error {
 }
 
 func (in Integrator) withDefaults() Integrator {
-	if !(in.WindowKT > 0) {
-		in.WindowKT = DefaultWindowKT
-	}
 	if !(in.RelTol > 0) {
 		in.RelTol = DefaultRelTol
+	}
+	if !(in.WindowKT > 0) {
+		// Without an edge a Fermi level far below the curve's start needs
+		// the wide window to reach it.
+		in.WindowKT = DefaultWindowKT
+		if in.HasEdge {
+			in.WindowKT = WindowFor(in.RelTol)
+		}
 	}
 	if !(in.AbsTol > 0) {
 		in.AbsTol = 0
@@ -281,6 +321,8 @@ func (ws *workspace) pushIfRefinable(i int32) {
 
 type runResult struct {
 	sum, bound float64 // Σ estimates and Σ bounds over the window's cells
+	base       float64 // the part at and below lo: c(lo) (Occupied), or w(lo)·c(lo) from the edge
+	atEdge     bool    // the window starts at the curve's edge
 	lo, hi     float64 // window ends
 	cLo, cHi   float64 // c at the window ends
 	evals      int
@@ -296,15 +338,39 @@ func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w fun
 	n := 2 * initialCells
 	ws.nodes, ws.vals = slices.Grow(ws.nodes[:0], n+1)[:n+1], slices.Grow(ws.vals[:0], n+1)[:n+1]
 	nodes, vals := ws.nodes, ws.vals
-	for i := range nodes {
-		nodes[i] = efEV + float64(i-initialCells)/initialCells*in.WindowKT*kTEV
+	width := in.WindowKT * kTEV
+	lo, hi := efEV-width, efEV+width
+	if in.HasEdge && Underflows(in.Edge, efEV, kTEV) {
+		// Zero in floating point, exactly: nothing to evaluate.
+		r.converged, r.atEdge = true, true
+		return r, nil
 	}
-	nodes[initialCells] = efEV // a node, so no cell straddles the peak of −f′
+	if in.HasEdge && lo < in.Edge {
+		lo, hi, r.atEdge = in.Edge, math.Max(efEV, in.Edge)+width, true
+	}
+	if lo < efEV && efEV < hi {
+		// E_F a node, so no cell straddles the peak of −f′.
+		for i := 0; i <= initialCells; i++ {
+			nodes[i] = lo + (efEV-lo)*float64(i)/initialCells
+			nodes[initialCells+i] = efEV + (hi-efEV)*float64(i)/initialCells
+		}
+	} else {
+		for i := range nodes {
+			nodes[i] = lo + (hi-lo)*float64(i)/float64(n)
+		}
+	}
+	nodes[0], nodes[n] = lo, hi
 	if err := evaluate(ctx, c, nodes, vals); err != nil {
 		return r, err
 	}
 	r.evals = n + 1
 	r.lo, r.hi, r.cLo, r.cHi = nodes[0], nodes[n], vals[0], vals[n]
+	switch {
+	case r.atEdge:
+		r.base = w(r.lo) * r.cLo
+	case offsetByCLo:
+		r.base = r.cLo
+	}
 
 	ws.cells, ws.heap = ws.cells[:0], ws.heap[:0]
 	wPrev := w(nodes[0])
@@ -322,17 +388,15 @@ func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w fun
 		ws.pushIfRefinable(int32(i))
 	}
 
-	offset := 0.0
-	if offsetByCLo {
-		offset = r.cLo
-	}
+	offset := r.base
 	floor := in.AbsTol
 	if floor == 0 {
-		scale := math.Max(math.Abs(r.cLo), math.Abs(r.cHi))
-		if !offsetByCLo {
-			scale /= kTEV
+		// The largest weight in the window times the largest |c|.
+		wmax := math.Max(w(r.lo), w(r.hi))
+		if !offsetByCLo && r.lo < efEV && efEV < r.hi {
+			wmax = w(efEV)
 		}
-		floor = absFloorScale * scale
+		floor = absFloorScale * math.Max(math.Abs(r.cLo), math.Abs(r.cHi)) * wmax
 	}
 	sum, bound := totals(ws.cells)
 	for {

@@ -410,3 +410,46 @@ func FuzzOccupiedStaircase(f *testing.F) {
 		}
 	})
 }
+
+// Boltzmann tail: from the band edge the density keeps its relative accuracy
+// however far E_F lies below it, n = N_c·ℱ_½(η) → N_c·e^η (Sze & Ng,
+// Physics of Semiconductor Devices, 3rd ed., eq. 1.19 and the
+// non-degenerate limit), for η down to −200 at the relative tolerance 1e-6
+// a scenario asks for.
+func TestOccupiedBoltzmannTail(t *testing.T) {
+	ctx := context.Background()
+	const C, kT = 3.7, 0.0259
+	band := func(e float64) float64 {
+		if e <= 0 {
+			return 0
+		}
+		return C * e * math.Sqrt(e)
+	}
+	in := Integrator{RelTol: 1e-6, MaxEvals: 2000, Edge: 0, HasEdge: true}
+	for _, eta := range []float64{-200, -60, -41, -10, -1, 0, 5, 30} {
+		e, err := in.Occupied(ctx, smooth(band), eta*kT, kT)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := C * math.Pow(kT, 1.5) * math.Gamma(2.5) * FermiDiracIntegral(0.5, eta)
+		if eta < -30 {
+			// ℱ_½(η) = e^η to 1e-13 there (DLMF 25.12.14 series).
+			want = C * math.Pow(kT, 1.5) * math.Gamma(2.5) * math.Exp(eta)
+		}
+		if relErr(e.Value, want) > 1e-6 {
+			t.Errorf("η = %g: Occupied = %.10g, N_c·ℱ_½(η) = %.10g (rel %.2g)", eta, e.Value, want, relErr(e.Value, want))
+		}
+		s, err := in.Slope(ctx, smooth(band), eta*kT, kT)
+		if err != nil {
+			t.Fatal(err)
+		}
+		// d/dE_F of the same: C(kT)^½Γ(5/2)ℱ_{−½}(η) (DLMF 25.12.15).
+		wantS := C * math.Sqrt(kT) * math.Gamma(2.5) * FermiDiracIntegral(-0.5, eta)
+		if eta < -30 {
+			wantS = C * math.Sqrt(kT) * math.Gamma(2.5) * math.Exp(eta)
+		}
+		if relErr(s.Value, wantS) > 1e-6 {
+			t.Errorf("η = %g: Slope = %.10g, want %.10g (rel %.2g)", eta, s.Value, wantS, relErr(s.Value, wantS))
+		}
+	}
+}

@@ -82,13 +82,13 @@ func (r *Result) Input() Scenario { return r.s }
 
 // source counts one variant: exactly with a Counter, or asymptotically.
 type source struct {
-	cond    spectrum.Conductor
-	states  *spectrum.Counter // nil: asymptotic (Weyl)
-	modes   *spectrum.Counter // nil: asymptotic (Weyl modes)
-	along   int
-	smooth  bool    // the continuum: analytic throughout
-	evalOps float64 // cost of one N(E) evaluation
-	edge    float64 // N(E) is zero below this energy
+	cond     spectrum.Conductor
+	states   *spectrum.Counter // nil: asymptotic (Weyl)
+	modes    *spectrum.Counter // nil: asymptotic (Weyl modes)
+	along    int
+	smooth   bool    // the continuum: analytic throughout
+	evalOps  float64 // cost of one N(E) evaluation
+	edge     float64 // N(E) is zero below this energy
 	modeEdge float64 // and M(E) below this
 	// weylStates and weylModes are the non-decreasing envelopes of the
 	// smooth counts that stand in for the exact ones above the budget.

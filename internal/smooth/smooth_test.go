@@ -205,10 +205,19 @@ func TestErrorEstimateBoundsAnisotropic(t *testing.T) {
 	r := rand.New(rand.NewPCG(41, 42))
 	nm := 1e-9
 	shapes := map[string]func() [3]float64{
-		"film": func() [3]float64 { return [3]float64{(300 + 2700*r.Float64()) * nm, (300 + 2700*r.Float64()) * nm, (1 + 4*r.Float64()) * nm} },
-		"line": func() [3]float64 { return [3]float64{(1 + 10*r.Float64()) * nm, (1 + 12*r.Float64()) * nm, (1e3 + 2e4*r.Float64()) * nm} },
-		"wire": func() [3]float64 { return [3]float64{(10 + 30*r.Float64()) * nm, (10 + 30*r.Float64()) * nm, (1e4 + 1e5*r.Float64()) * nm} },
-		"cube": func() [3]float64 { l := (20 + 60*r.Float64()) * nm; return [3]float64{l, l, l * (1 + r.Float64()*r.Float64())} },
+		"film": func() [3]float64 {
+			return [3]float64{(300 + 2700*r.Float64()) * nm, (300 + 2700*r.Float64()) * nm, (1 + 4*r.Float64()) * nm}
+		},
+		"line": func() [3]float64 {
+			return [3]float64{(1 + 10*r.Float64()) * nm, (1 + 12*r.Float64()) * nm, (1e3 + 2e4*r.Float64()) * nm}
+		},
+		"wire": func() [3]float64 {
+			return [3]float64{(10 + 30*r.Float64()) * nm, (10 + 30*r.Float64()) * nm, (1e4 + 1e5*r.Float64()) * nm}
+		},
+		"cube": func() [3]float64 {
+			l := (20 + 60*r.Float64()) * nm
+			return [3]float64{l, l, l * (1 + r.Float64()*r.Float64())}
+		},
 	}
 	for _, name := range []string{"film", "line", "wire", "cube"} {
 		for trial := 0; trial < 6; trial++ {

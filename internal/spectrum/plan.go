@@ -38,9 +38,9 @@ type Plan struct {
 	Ops     float64 // building the counter plus the evaluations
 	PerEval float64 // one evaluation of N(E)
 	Bytes   float64 // what the counter holds
-	c     Conductor
-	gmax  float64
-	v     []valleyPlan
+	c       Conductor
+	gmax    float64
+	v       []valleyPlan
 }
 
 type valleyPlan struct {

@@ -151,10 +151,17 @@ func TestLargeConductorsExact(t *testing.T) {
 		l    func() [3]float64
 		emax float64
 	}{
-		{"film", func() [3]float64 { return [3]float64{(500 + 2500*r.Float64()) * nm, (500 + 2500*r.Float64()) * nm, (1 + 4*r.Float64()) * nm} }, 7},
-		{"line", func() [3]float64 { return [3]float64{(1 + 10*r.Float64()) * nm, (1 + 10*r.Float64()) * nm, (1e3 + 2e4*r.Float64()) * nm} }, 7},
+		{"film", func() [3]float64 {
+			return [3]float64{(500 + 2500*r.Float64()) * nm, (500 + 2500*r.Float64()) * nm, (1 + 4*r.Float64()) * nm}
+		}, 7},
+		{"line", func() [3]float64 {
+			return [3]float64{(1 + 10*r.Float64()) * nm, (1 + 10*r.Float64()) * nm, (1e3 + 2e4*r.Float64()) * nm}
+		}, 7},
 		{"wire", func() [3]float64 { return [3]float64{(10 + 20*r.Float64()) * nm, (10 + 20*r.Float64()) * nm, 1e6 * nm} }, 0.3},
-		{"cube", func() [3]float64 { l := (30 + 20*r.Float64()) * nm; return [3]float64{l, l * (1 + r.Float64()/10), l * (1 + r.Float64()/10)} }, 7},
+		{"cube", func() [3]float64 {
+			l := (30 + 20*r.Float64()) * nm
+			return [3]float64{l, l * (1 + r.Float64()/10), l * (1 + r.Float64()/10)}
+		}, 7},
 	}
 	for _, sh := range shapes {
 		for trial := 0; trial < 4; trial++ {

@@ -721,8 +721,7 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	}
 	o.ConductanceS = phys.ConductanceQuantumPerSpin * o.MeanModes * o.Transmission
 	o.ConductanceG0 = o.ConductanceS / phys.ConductanceQuantum
-	if o.ConductanceS > 0 {
-		r := 1 / o.ConductanceS
+	if r := 1 / o.ConductanceS; o.ConductanceS > 0 && !math.IsInf(r, 0) {
 		o.ResistanceOhm = &r
 	}
 	// C_Q = q²·∫D(−∂f/∂E)dE; with D in 1/eV that is q·D in F.

@@ -268,7 +268,12 @@ func TestObserveQuantumCapacitanceAtZeroTemperature(t *testing.T) {
 // never panic, and every number must be finite.
 func FuzzRun(f *testing.F) {
 	for _, s := range []string{"", "lx=1m", "dims=1&bx=ring&temp=0", "material=si&dims=2&by=open&density=1e5",
-		"material=custom&m=0.01&alpha=50&emax=3", "bz=box&eta=1e-6&shape=lorentzian", "at=-5,0,1e3&emin=-10"} {
+		"material=custom&m=0.01&alpha=50&emax=3", "bz=box&eta=1e-6&shape=lorentzian", "at=-5,0,1e3&emin=-10",
+		// Extreme ratios: axis spacings 10⁹ apart, a 10⁵ mass ratio, a
+		// Boltzmann tail far below a 30 eV edge.
+		"lx=1cm&ly=1cm&lz=0.1nm&bz=box", "lx=3cm&ly=3cm&lz=0.1nm&bz=box&bx=ring",
+		"material=custom&m=0.001&mx=100&dims=2&lx=1m&ly=1nm&by=box", "material=gaas&density=1e-20&bx=open&by=open&bz=open",
+		"lx=1m&ly=1m&lz=1m&bz=box&temp=0&density=1"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, raw string) {

@@ -67,10 +67,11 @@ type Integrator struct {
 }
 
 // Underflows reports whether the occupation e^(−(E − E_F)/k_BT) at and
-// above edge is below the smallest float64 (E − E_F > 745 k_BT): a curve
-// that starts at edge then integrates to exactly zero in floating point.
+// above edge is below the smallest normal float64, e^(−708) (E − E_F >
+// 708 k_BT): a curve that starts at edge then integrates to zero, to the
+// precision floating point holds.
 func Underflows(edge, efEV, kTEV float64) bool {
-	return edge-efEV > 745*kTEV
+	return edge-efEV > 708*kTEV
 }
 
 // WindowFor returns the half-width of the thermal window, in k_BT, that

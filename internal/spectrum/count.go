@@ -210,16 +210,21 @@ func (p Plan) Counter(ctx context.Context) (*Counter, error) {
 		vc := valleyCounter{weight: float64(p.c.SpinDegeneracy * v.Degeneracy), conf: vp.conf}
 		vc.open = newOpenPart(p.c.Axes, v.MassM0[:len(p.c.Axes)])
 		if vp.list {
-			cl, err := columns(ctx, vc.conf[1], vc.conf[2], p.gmax-vc.conf[0].q*float64(vc.conf[0].first()))
+			cl, lists, err := columns(ctx, vc.conf[1], vc.conf[2], p.gmax-vc.conf[0].q*float64(vc.conf[0].first()))
 			if err != nil {
 				return nil, err
 			}
 			vc.classes = cl
-			if vc.list, err = merge(ctx, cl); err != nil {
-				return nil, err
-			}
-			if err := vc.list.index(ctx); err != nil {
-				return nil, err
+			if len(cl) == 1 && cl[0].w == 1 {
+				// One class of weight 1 (two box axes): the list as built.
+				vc.list = lists[0]
+			} else {
+				if vc.list, err = merge(ctx, cl); err != nil {
+					return nil, err
+				}
+				if err := vc.list.index(ctx); err != nil {
+					return nil, err
+				}
 			}
 		}
 		k.valleys = append(k.valleys, vc)
@@ -227,10 +232,10 @@ func (p Plan) Counter(ctx context.Context) (*Counter, error) {
 	return k, nil
 }
 
-// columns lists ε_a(n_a) + ε_b(n_b) ≤ gmax, grouped by weight and sorted.
-func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
+// columns lists ε_a(n_a) + ε_b(n_b) ≤ gmax, grouped by weight, each group
+// sorted with its bucket index (sortedClass).
+func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, []columnList, error) {
 	// Weights are a.weight(i)·b.weight(j) ∈ {1, 2, 4}: class index by log₂.
-	cls := func(w float64) int { return int(w) / 2 }
 	// Count first, so each class is allocated once at its final size; the
 	// weights are constant for j ≥ first+1 on either ladder.
 	na := a.top(gmax)
@@ -240,77 +245,102 @@ func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, error) {
 		if nb < b.first() {
 			continue
 		}
-		sizes[cls(a.weight(i)*b.weight(b.first()))]++
+		sizes[weightClass(a.weight(i)*b.weight(b.first()))]++
 		if rest := nb - b.first(); rest > 0 {
-			sizes[cls(a.weight(i)*b.weight(b.first()+1))] += rest
-		}
-	}
-	var lists [3][]float64
-	for c, n := range sizes {
-		lists[c] = make([]float64, 0, n)
-	}
-	for i := a.first(); i <= na; i++ {
-		if i%256 == 0 && ctx.Err() != nil {
-			return nil, ctx.Err()
-		}
-		ea := a.q * float64(i) * float64(i)
-		nb := b.top(gmax - ea)
-		for j := b.first(); j <= nb; j++ {
-			c := cls(a.weight(i) * b.weight(j))
-			lists[c] = append(lists[c], ea+b.q*float64(j)*float64(j))
+			sizes[weightClass(a.weight(i)*b.weight(b.first()+1))] += rest
 		}
 	}
 	var out []class
-	for c, e := range lists {
-		if len(e) == 0 {
+	var lists []columnList
+	for c, n := range sizes {
+		if n == 0 {
 			continue
 		}
-		if err := bucketSort(ctx, e, gmax); err != nil {
-			return nil, err
+		l, err := sortedClass(ctx, a, b, gmax, c, n)
+		if err != nil {
+			return nil, nil, err
 		}
-		out = append(out, class{w: [3]float64{1, 2, 4}[c], e: e})
+		out = append(out, class{w: [3]float64{1, 2, 4}[c], e: l.e})
+		lists = append(lists, l)
 	}
-	return out, nil
+	return out, lists, nil
 }
 
-// bucketSort sorts values in [0, max] in place in O(n) expected time: the
-// column energies of two axes are spread nearly evenly in γ (the 2D density
-// of states is flat), so one bucket per value holds about one value.
-func bucketSort(ctx context.Context, e []float64, max float64) error {
-	n := len(e)
-	if n < 64 || !(max > 0) {
-		slices.Sort(e)
+func weightClass(w float64) int { return int(w) / 2 }
+
+// sortedClass returns the n column energies of weight class c, sorted, with
+// their bucket index over n buckets of [0, gmax]. It generates them twice
+// instead of storing and sorting them: a first pass counts the entries of
+// each of (at most) 1024 coarse bins, a second drops each entry into its
+// coarse bin (1024 write streams, which the caches hold, where n buckets
+// would miss on every write), and each coarse bin is then bucket-sorted in
+// a small buffer, which fills its stretch of the fine index as it goes
+// (about one entry a bucket, since the 2D density of states is flat). The
+// list costs 12 bytes an entry and little more at any time.
+func sortedClass(ctx context.Context, a, b ladder, gmax float64, c, n int) (columnList, error) {
+	l := columnList{e: make([]float64, n), bucket: make([]int32, n+1), scale: float64(n) / gmax}
+	idx := func(x float64) int { return min(max0(int(x*l.scale)), n-1) }
+	nc := min(1024, n)
+	bin := func(k int) int { return int(int64(k) * int64(nc) / int64(n)) }
+	rows := func(emit func(x float64)) error {
+		for i, na := a.first(), a.top(gmax); i <= na; i++ {
+			if i%256 == 0 && ctx.Err() != nil {
+				return ctx.Err()
+			}
+			ea := a.q * float64(i) * float64(i)
+			nb := b.top(gmax - ea)
+			for j := b.first(); j <= nb; j++ {
+				if weightClass(a.weight(i)*b.weight(j)) == c {
+					emit(ea + b.q*float64(j)*float64(j))
+				}
+			}
+		}
 		return nil
 	}
-	start := make([]int32, n+1)
-	idx := func(x float64) int {
-		i := int(x / max * float64(n))
-		return min(max0(i), n-1)
+	start := make([]int, nc+1)
+	if err := rows(func(x float64) { start[bin(idx(x))+1]++ }); err != nil {
+		return l, err
 	}
-	for _, x := range e {
-		start[idx(x)+1]++
+	for k := 1; k <= nc; k++ {
+		start[k] += start[k-1]
 	}
-	for i := 1; i <= n; i++ {
-		start[i] += start[i-1]
+	cur := slices.Clone(start[:nc])
+	if err := rows(func(x float64) { k := bin(idx(x)); l.e[cur[k]] = x; cur[k]++ }); err != nil {
+		return l, err
 	}
-	out := make([]float64, n)
-	fill := slices.Clone(start[:n])
-	for _, x := range e {
-		b := idx(x)
-		out[fill[b]] = x
-		fill[b]++
-	}
-	for b := 0; b < n; b++ {
-		if b%checkEvery == 0 && ctx.Err() != nil {
-			return ctx.Err()
+	var tmp []float64
+	var fill []int32
+	for cb := 0; cb < nc; cb++ {
+		if ctx.Err() != nil {
+			return l, ctx.Err()
 		}
-		lo, hi := int(start[b]), int(start[b+1])
-		if hi-lo > 1 {
-			slices.Sort(out[lo:hi])
+		lo, hi := start[cb], start[cb+1]
+		seg := l.e[lo:hi]
+		// The fine buckets of this bin: kLo ≤ k < kHi. bucket[kLo] already
+		// holds lo (the end of the bin before).
+		kLo := int((int64(cb)*int64(n) + int64(nc) - 1) / int64(nc))
+		kHi := int((int64(cb+1)*int64(n) + int64(nc) - 1) / int64(nc))
+		for _, x := range seg {
+			l.bucket[idx(x)+1]++
+		}
+		for k := kLo + 1; k <= kHi; k++ {
+			l.bucket[k] += l.bucket[k-1]
+		}
+		fill = append(fill[:0], l.bucket[kLo:kHi]...)
+		tmp = slices.Grow(tmp[:0], len(seg))[:len(seg)]
+		for _, x := range seg {
+			f := &fill[idx(x)-kLo]
+			tmp[int(*f)-lo] = x
+			*f++
+		}
+		copy(seg, tmp)
+		for k := kLo; k < kHi; k++ {
+			if p, q := int(l.bucket[k]), int(l.bucket[k+1]); q-p > 1 {
+				slices.Sort(l.e[p:q])
+			}
 		}
 	}
-	copy(e, out)
-	return nil
+	return l, nil
 }
 
 func max0(i int) int {

@@ -382,25 +382,6 @@ func TestBroadenedBinnedLargeBox(t *testing.T) {
 	}
 }
 
-func TestBucketSort(t *testing.T) {
-	r := rand.New(rand.NewPCG(9, 9))
-	for _, n := range []int{0, 1, 63, 64, 1000, 50000} {
-		e := make([]float64, n)
-		for i := range e {
-			e[i] = 7 * r.Float64() * r.Float64() // uneven on purpose
-		}
-		e = append(e, 0, 7)
-		want := append([]float64(nil), e...)
-		sort.Float64s(want)
-		_ = bucketSort(context.Background(), e, 7)
-		for i := range e {
-			if e[i] != want[i] {
-				t.Fatalf("n=%d: element %d is %g, want %g", n, i, e[i], want[i])
-			}
-		}
-	}
-}
-
 // TestLevelsMatchEnumeration: the lowest levels and their degeneracies equal
 // those read off the brute-force staircase (each jump of N(E) is a level).
 func TestLevelsMatchEnumeration(t *testing.T) {

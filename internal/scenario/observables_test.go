@@ -161,9 +161,9 @@ func TestSharvinConductance(t *testing.T) {
 }
 
 // TestTransmissionFactor: with a mean free path λ over the channel length
-// L the Landauer transmission is λ/(λ + L) (Datta, Electronic Transport in
-// Mesoscopic Systems (1995), ch. 2; section from memory), so G falls by
-// that factor.
+// L the Landauer transmission is λ/(λ + L), the incoherent series sum
+// (1−T)/T = Σ(1−Tᵢ)/Tᵢ of Büttiker, IBM J. Res. Dev. 32, 63 (1988) (from
+// memory), so G falls by that factor.
 func TestTransmissionFactor(t *testing.T) {
 	const base = "material=gaas&lx=10nm&ly=10nm&lz=100nm&bz=open&temp=300&ef=0.08"
 	ballistic := observeQ(t, base)

@@ -716,7 +716,8 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	o.Transmission = 1
 	if s.MFPM > 0 {
 		// Landauer–Büttiker with an energy-independent mean free path:
-		// T = λ/(λ + L) (Datta, Electronic Transport in Mesoscopic Systems, 1995).
+		// T = λ/(λ + L), the incoherent series sum (1−T)/T = Σ(1−Tᵢ)/Tᵢ of Büttiker,
+		// IBM J. Res. Dev. 32, 63 (1988) (from memory).
 		o.Transmission = s.MFPM / (s.MFPM + s.LengthM[s.Along])
 	}
 	o.ConductanceS = phys.ConductanceQuantumPerSpin * o.MeanModes * o.Transmission

@@ -47,3 +47,14 @@ func BenchmarkWire10x10x100(b *testing.B) {
 	s, _ := Parse(q)
 	benchRun(b, s)
 }
+
+// BenchmarkWireGaAs300 is a 300 nm × 300 nm GaAs wire, 1 µm long and open
+// along z, counted to 2 eV (about 6×10⁷ states below emax).
+func BenchmarkWireGaAs300(b *testing.B) {
+	q, _ := url.ParseQuery("material=gaas&lx=300nm&ly=300nm&lz=1um&bz=open&emax=2")
+	s, err := Parse(q)
+	if err != nil {
+		b.Fatal(err)
+	}
+	benchRun(b, s)
+}

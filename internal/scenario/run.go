@@ -106,16 +106,25 @@ func (v *source) prepare(ctx context.Context, s Scenario, es []float64) error {
 	slices.Sort(sorted)
 	sorted = slices.Compact(sorted)
 	st := make([]float64, len(sorted))
-	if err := v.stateCurve(ctx, sorted, st); err != nil {
-		return err
-	}
 	m := make([]float64, len(sorted))
 	if err := v.modeCurve(ctx, sorted, m); err != nil {
 		return err
 	}
-	d, err := v.dos(ctx, s, sorted)
-	if err != nil {
-		return err
+	var d []float64
+	if v.states != nil && !v.cond.Confined() {
+		// One pass gives N and the analytic D.
+		d = make([]float64, len(sorted))
+		if err := v.states.StatesAndDensity(ctx, sorted, st, d); err != nil {
+			return err
+		}
+	} else {
+		if err := v.stateCurve(ctx, sorted, st); err != nil {
+			return err
+		}
+		var err error
+		if d, err = v.dos(ctx, s, sorted); err != nil {
+			return err
+		}
 	}
 	v.stateAt = make(map[float64]float64, len(sorted))
 	v.modeAt = make(map[float64]float64, len(sorted))
@@ -476,7 +485,24 @@ func evals(s Scenario, c spectrum.Conductor, evalOps float64) int {
 	if s.HasDensity {
 		integrals += 40
 	}
-	return n + integrals*maxEvals(evalOps)
+	perIntegral := maxEvals(evalOps)
+	if summedBySubband(c) && evalOps <= maxSubbands {
+		// One pass over the subbands, about one evaluation's work.
+		perIntegral = 1
+	}
+	return n + integrals*perIntegral
+}
+
+// summedBySubband reports whether bySubband takes the thermal sums of c:
+// one or two open axes, or two confined axes and none open.
+func summedBySubband(c spectrum.Conductor) bool {
+	open := 0
+	for _, a := range c.Axes {
+		if a.BC == spectrum.Open {
+			open++
+		}
+	}
+	return open < 3 && (open > 0 || len(c.Axes) < 3)
 }
 
 // plan prices the exact count of one variant (states and, along the
@@ -696,12 +722,60 @@ func maxEvals(evalOps float64) int {
 	return int(n)
 }
 
+// bySubband sums the thermal averages of counter k at (E_F, T) one
+// subband at a time (thermal.SubbandSum): its electrons Σ w·G and
+// dN/dE_F = Σ w·S. ok is false where that does not apply: at T = 0, with
+// no counter (an asymptotic count), with three confined axes (each level
+// is its own subband: the integrator is cheaper) or with three open ones
+// (one smooth curve). Two confined axes and no open one (the transverse
+// modes of a wire) are summed level by level, Σ w·f(Eₙ).
+func bySubband(ctx context.Context, k *spectrum.Counter, ef, kT float64) (occ, slope float64, ok bool, err error) {
+	if k == nil || kT <= 0 {
+		return 0, 0, false, nil
+	}
+	dim := k.OpenDims()
+	c := k.Conductor()
+	if !summedBySubband(c) {
+		return 0, 0, false, nil
+	}
+	lo := c.Edge()
+	top := math.Min(math.Max(ef, lo)+thermal.WindowFor(relTol)*kT, k.TopEV())
+	n := k.SubbandCount(top)
+	if n > maxSubbands {
+		return 0, 0, false, nil
+	}
+	sum, err := thermal.NewSubbandSum(ctx, dim, c.AlphaPerEV, ef, kT, lo, top, int(n))
+	if err != nil {
+		return 0, 0, false, canceled(err)
+	}
+	err = k.Subbands(ctx, top, func(e, w float64) {
+		g, sl := sum.At(e)
+		occ += w * g
+		slope += w * sl
+	})
+	if err != nil {
+		return 0, 0, false, canceled(err)
+	}
+	return occ, slope, true, nil
+}
+
+// maxSubbands caps the subbands one thermal sum visits (each costs some
+// 30 operations): about the work of one capped curve integral
+// (integrator). Beyond it the curve integrator takes over, whose work the
+// plan has priced.
+const maxSubbands = 1e6
+
 func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observables, error) {
 	kT := s.KTEV()
 	in := v.integrator()
 	o := Observables{DensityUnit: s.DensityUnit()}
-	var err error
-	if o.Electrons, err = average(ctx, in, v.stateCurve, ef, kT); err != nil {
+	occ, slope, bySub, err := bySubband(ctx, v.states, ef, kT)
+	if err != nil {
+		return o, err
+	}
+	if bySub {
+		o.Electrons = occ
+	} else if o.Electrons, err = average(ctx, in, v.stateCurve, ef, kT); err != nil {
 		return o, err
 	}
 	o.Density = o.Electrons * s.densityScale()
@@ -710,7 +784,11 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	o.VolumeDensityUnit = [...]string{"", "cm^-1", "cm^-2", "cm^-3"}[s.Dims]
 	inModes := in
 	inModes.Edge = v.modeEdge
-	if o.MeanModes, err = average(ctx, inModes, v.modeCurve, ef, kT); err != nil {
+	if m, _, ok, err := bySubband(ctx, v.modes, ef, kT); err != nil {
+		return o, err
+	} else if ok {
+		o.MeanModes = m
+	} else if o.MeanModes, err = average(ctx, inModes, v.modeCurve, ef, kT); err != nil {
 		return o, err
 	}
 	o.Transmission = 1
@@ -727,13 +805,16 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	}
 	// C_Q = q²·∫D(−∂f/∂E)dE; with D in 1/eV that is q·D in F.
 	var dq float64
-	if kT > 0 {
+	switch {
+	case bySub:
+		dq = slope
+	case kT > 0:
 		est, err := in.Slope(ctx, v.stateCurve, ef, kT)
 		if err != nil {
 			return o, canceled(err)
 		}
 		dq = est.Value
-	} else {
+	default:
 		d, err := v.dos(ctx, s, []float64{ef})
 		if err != nil {
 			return o, err
@@ -826,7 +907,10 @@ func solveFermiLevel(ctx context.Context, s Scenario, v *source, hi float64) (fl
 	}
 	in := v.integrator()
 	density := func(ctx context.Context, e float64) (float64, error) {
-		n, err := average(ctx, in, v.stateCurve, e, kT)
+		n, _, ok, err := bySubband(ctx, v.states, e, kT)
+		if !ok && err == nil {
+			n, err = average(ctx, in, v.stateCurve, e, kT)
+		}
 		return n * scale, err
 	}
 	lo, err := bracketBelow(ctx, s, density, v.edge)

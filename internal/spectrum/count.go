@@ -375,6 +375,10 @@ func (v *valleyCounter) count(g0 float64) float64 {
 			}
 		}
 	case 2:
+		if v.open.dim == 1 {
+			s, _ = v.wire(g0, false)
+			break
+		}
 		a, b := v.conf[0], v.conf[1]
 		for n, top := a.first(), a.top(g); n <= top; n++ {
 			r := g - a.q*float64(n)*float64(n)
@@ -447,19 +451,70 @@ func (v *valleyCounter) slope(g float64) float64 {
 			s = v.open.pref * l.count(g)
 			break
 		}
-		for n := l.first(); n <= l.top(g); n++ {
+		for n, top := l.first(), l.top(g); n <= top; n++ {
 			s += l.weight(n) * v.open.slope(g-l.q*float64(n)*float64(n))
 		}
 	case 2:
+		if v.open.dim == 1 {
+			_, s = v.wire(g, true)
+			break
+		}
 		a, b := v.conf[0], v.conf[1]
-		for n := a.first(); n <= a.top(g); n++ {
+		for n, top := a.first(), a.top(g); n <= top; n++ {
 			r := g - a.q*float64(n)*float64(n)
-			for m := b.first(); m <= b.top(r); m++ {
+			for m, topm := b.first(), b.top(r); m <= topm; m++ {
 				s += a.weight(n) * b.weight(m) * v.open.slope(r-b.q*float64(m)*float64(m))
 			}
 		}
 	}
 	return v.weight * s
+}
+
+// wire returns N and dN/dγ, per unit valley weight, of a valley with two
+// confined axes and one open one in one pass over its subbands:
+// pref·Σ w√(γ − γₙ) and pref·Σ w/(2√(γ − γₙ)). The van Hove peak of a
+// subband with its edge exactly at γ is left out of the slope, as in
+// openPart.slope.
+func (v *valleyCounter) wire(g0 float64, slope bool) (n, d float64) {
+	a, b := v.conf[0], v.conf[1]
+	g := g0 * (1 + tieRel)
+	for i, top := a.first(), a.top(g); i <= top; i++ {
+		ea := a.q * float64(i) * float64(i)
+		r0 := g0 - ea
+		var sn, sd float64
+		m, topm := b.first(), b.top(g-ea)
+		if b.ring && m == 0 && topm >= 0 {
+			// m = 0 has weight 1, every m ≥ 1 weight 2: all of them are
+			// doubled below, so half of m = 0 comes off first.
+			if r0 > 0 {
+				rt := math.Sqrt(r0)
+				sn -= rt / 2
+				if slope {
+					sd -= 1 / (2 * rt)
+				}
+			}
+		}
+		if slope {
+			for ; m <= topm; m++ {
+				if x := r0 - b.q*float64(m)*float64(m); x > 0 {
+					rt := math.Sqrt(x)
+					sn += rt
+					sd += 1 / rt
+				}
+			}
+		} else {
+			for ; m <= topm; m++ {
+				sn += math.Sqrt(max(r0-b.q*float64(m)*float64(m), 0))
+			}
+		}
+		bw := 1.0
+		if b.ring {
+			bw = 2
+		}
+		n += a.weight(i) * bw * sn
+		d += a.weight(i) * bw * sd
+	}
+	return v.open.pref * n, v.open.pref * d / 2
 }
 
 // States writes N(E), the number of states with energy ≤ E (spin and valleys
@@ -469,7 +524,7 @@ func (k *Counter) States(ctx context.Context, energiesEV, out []float64) error {
 	if k.ascendingColumns(energiesEV) {
 		return k.eachAscending(ctx, energiesEV, out)
 	}
-	return k.each(ctx, energiesEV, out, func(v *valleyCounter, g float64) float64 { return v.count(g) })
+	return k.each(ctx, energiesEV, out, nil, func(v *valleyCounter, g float64) (float64, float64) { return v.count(g), 0 })
 }
 
 // ascendingColumns reports whether the galloping batch path applies.
@@ -530,7 +585,7 @@ func (k *Counter) eachAscending(ctx context.Context, energiesEV, out []float64) 
 // least one axis is open (2D steps, 1D inverse-square-root peaks). For a
 // fully confined conductor D is a sum of delta functions: use Broadened.
 func (k *Counter) DensityOfStates(ctx context.Context, energiesEV, out []float64) error {
-	err := k.each(ctx, energiesEV, out, func(v *valleyCounter, g float64) float64 { return v.slope(g) })
+	err := k.each(ctx, energiesEV, out, nil, func(v *valleyCounter, g float64) (float64, float64) { return v.slope(g), 0 })
 	if err != nil {
 		return err
 	}
@@ -540,11 +595,38 @@ func (k *Counter) DensityOfStates(ctx context.Context, energiesEV, out []float64
 	return nil
 }
 
+// StatesAndDensity writes States into n and DensityOfStates into d in one
+// pass, which for a wire shares each subband's square root.
+func (k *Counter) StatesAndDensity(ctx context.Context, energiesEV, n, d []float64) error {
+	if k.ascendingColumns(energiesEV) {
+		if err := k.States(ctx, energiesEV, n); err != nil {
+			return err
+		}
+		return k.DensityOfStates(ctx, energiesEV, d)
+	}
+	err := k.each(ctx, energiesEV, n, d, func(v *valleyCounter, g float64) (float64, float64) {
+		if len(v.conf) == 2 && v.open.dim == 1 && g >= 0 {
+			a, b := v.wire(g, true)
+			return v.weight * a, v.weight * b
+		}
+		return v.count(g), v.slope(g)
+	})
+	if err != nil {
+		return err
+	}
+	for i, e := range energiesEV {
+		d[i] *= dGammadE(e, k.c.AlphaPerEV)
+	}
+	return nil
+}
+
 // Conductor returns the conductor being counted.
 func (k *Counter) Conductor() Conductor { return k.c }
 
-func (k *Counter) each(ctx context.Context, energiesEV, out []float64, f func(*valleyCounter, float64) float64) error {
-	if len(out) != len(energiesEV) {
+// each writes Σ over valleys of f's first value into out and, when out2 is
+// not nil, of its second into out2, for every energy, on all cores.
+func (k *Counter) each(ctx context.Context, energiesEV, out, out2 []float64, f func(*valleyCounter, float64) (float64, float64)) error {
+	if len(out) != len(energiesEV) || (out2 != nil && len(out2) != len(out)) {
 		panic("spectrum: output length differs from input")
 	}
 	gam := make([]float64, len(energiesEV))
@@ -559,11 +641,16 @@ func (k *Counter) each(ctx context.Context, energiesEV, out []float64, f func(*v
 			if ctx.Err() != nil {
 				return ctx.Err()
 			}
-			var s float64
+			var s, s2 float64
 			for vi := range k.valleys {
-				s += f(&k.valleys[vi], gam[i])
+				a, b := f(&k.valleys[vi], gam[i])
+				s += a
+				s2 += b
 			}
 			out[i] = s
+			if out2 != nil {
+				out2[i] = s2
+			}
 		}
 		return nil
 	}
@@ -579,4 +666,88 @@ func (k *Counter) each(ctx context.Context, energiesEV, out []float64, f func(*v
 		g.Go(func() error { return work(lo, hi) })
 	}
 	return g.Wait()
+}
+
+// OpenDims returns the number of open axes.
+func (k *Counter) OpenDims() int {
+	if len(k.valleys) == 0 {
+		return 0
+	}
+	return k.valleys[0].open.dim
+}
+
+// Subbands calls fn for every subband with its edge at or below topEV: its
+// edge energy and its weight, so that the subband holds weight·(γ − γₙ)^(d/2)
+// states (d = OpenDims, spin and valleys included). Subbands are the levels
+// of the confined axes; with no confined axis there is one, at 0. A fully
+// confined conductor has no subbands to list: Subbands panics.
+func (k *Counter) Subbands(ctx context.Context, topEV float64, fn func(edgeEV, weight float64)) error {
+	g := Gamma(topEV, k.c.AlphaPerEV) * (1 + tieRel)
+	if g > k.gammaMax*(1+2*tieRel) {
+		panic("spectrum: subbands above the counter's cap")
+	}
+	alpha := k.c.AlphaPerEV
+	for vi := range k.valleys {
+		v := &k.valleys[vi]
+		w := v.weight
+		if v.open.dim > 0 {
+			w *= v.open.pref
+		}
+		switch len(v.conf) {
+		case 0:
+			if g >= 0 {
+				fn(0, w)
+			}
+		case 1:
+			l := v.conf[0]
+			for n, top := l.first(), l.top(g); n <= top; n++ {
+				fn(Energy(l.q*float64(n)*float64(n), alpha), w*l.weight(n))
+			}
+		case 2:
+			a, b := v.conf[0], v.conf[1]
+			for n, top := a.first(), a.top(g); n <= top; n++ {
+				if n%256 == 0 && ctx.Err() != nil {
+					return ctx.Err()
+				}
+				ea := a.q * float64(n) * float64(n)
+				wa := w * a.weight(n)
+				for m, topm := b.first(), b.top(g-ea); m <= topm; m++ {
+					fn(Energy(ea+b.q*float64(m)*float64(m), alpha), wa*b.weight(m))
+				}
+			}
+		default:
+			panic("spectrum: subbands of a fully confined conductor")
+		}
+	}
+	return nil
+}
+
+// TopEV returns the highest energy the counter answers for.
+func (k *Counter) TopEV() float64 { return Energy(k.gammaMax, k.c.AlphaPerEV) }
+
+// SubbandCount returns how many subbands Subbands(topEV) would list (their
+// distinct index tuples, over the valleys), at the cost of one pass over
+// the outer axis.
+func (k *Counter) SubbandCount(topEV float64) float64 {
+	g := Gamma(topEV, k.c.AlphaPerEV) * (1 + tieRel)
+	var n float64
+	for vi := range k.valleys {
+		v := &k.valleys[vi]
+		switch len(v.conf) {
+		case 0:
+			if g >= 0 {
+				n++
+			}
+		case 1:
+			n += float64(v.conf[0].levels(g))
+		case 2:
+			a, b := v.conf[0], v.conf[1]
+			for i, top := a.first(), a.top(g); i <= top; i++ {
+				n += float64(b.levels(g - a.q*float64(i)*float64(i)))
+			}
+		default:
+			return math.Inf(1)
+		}
+	}
+	return n
 }

@@ -58,3 +58,5 @@ func BenchmarkWireGaAs300(b *testing.B) {
 	}
 	benchRun(b, s)
 }
+func BenchmarkCube1e11(b *testing.B)     { benchRun(b, cube(b, 1070, "0")) }
+func BenchmarkCube1e11Warm(b *testing.B) { benchRun(b, cube(b, 1070, "300")) }

@@ -5,6 +5,7 @@ import (
 	"math"
 	"runtime"
 	"slices"
+	"sort"
 
 	"golang.org/x/sync/errgroup"
 
@@ -72,48 +73,26 @@ func (p openPart) slope(x float64) float64 {
 	return 1.5 * p.pref * math.Sqrt(x)
 }
 
-// class is a sorted list of 2D column energies that share one weight.
-type class struct {
-	w float64
-	e []float64
-}
-
-// columnList is the merged, sorted list of the inner two axes' energies with
-// the running total of their weights: N₂(x) = cum[upper(e, x) − 1]. A bucket
-// index over [0, max] (about one entry per bucket, since the energies are
-// spread nearly evenly) finds upper(e, x) in O(1): the bucket's first entry,
-// then a step or two.
+// columnList is the sorted list of the column energies ε_a(i) + ε_b(j) of
+// the inner two axes that share one weight, with a bucket index over
+// [0, gmax] (about one entry per bucket, since the energies are spread
+// nearly evenly) that finds upper(x) in O(1): the bucket's first entry,
+// then a step or two. An entry is its pair (i, j) packed in 32 bits (a
+// list allowed by MaxListBytes has far fewer than 2¹⁶ levels per axis);
+// its energy is recomputed by the expression that sorted it, so it
+// compares the same. An entry costs 8 bytes with its bucket.
 type columnList struct {
-	e      []float64
-	cum    []float64 // nil when every weight is 1 (N₂ is the index)
-	bucket []int32   // bucket[b] = number of entries below b/scale
+	a, b   ladder
+	w      float64 // the weight each entry stands for
+	p      []uint32
+	bucket []int32 // bucket[k] = number of entries below k/scale
 	scale  float64
 }
 
-func (c *columnList) index(ctx context.Context) error {
-	n := len(c.e)
-	if n == 0 {
-		return nil
-	}
-	top := c.e[n-1]
-	if !(top > 0) {
-		top = 1
-	}
-	c.scale = float64(n) / top
-	c.bucket = make([]int32, n+2)
-	// bucket[b] counts the entries with x·scale < b, i.e. in buckets below b.
-	for i, x := range c.e {
-		if i%checkEvery == 0 && ctx.Err() != nil {
-			return ctx.Err()
-		}
-		if b := int(x*c.scale) + 1; b < len(c.bucket) {
-			c.bucket[b]++
-		}
-	}
-	for b := 1; b < len(c.bucket); b++ {
-		c.bucket[b] += c.bucket[b-1]
-	}
-	return nil
+// energy returns the column energy of entry k.
+func (c *columnList) energy(k int) float64 {
+	i, j := float64(c.p[k]>>16), float64(c.p[k]&0xffff)
+	return c.a.q*i*i + c.b.q*j*j
 }
 
 // checkEvery is how many entries a build handles between checks of its
@@ -122,56 +101,30 @@ const checkEvery = 1 << 16
 
 // upper returns the number of entries ≤ x.
 func (c *columnList) upper(x float64) int {
-	if x < 0 || len(c.e) == 0 {
+	if x < 0 || len(c.p) == 0 {
 		return 0
 	}
 	b := int(x * c.scale)
 	if b >= len(c.bucket)-1 {
-		return len(c.e)
+		return len(c.p)
 	}
 	i := int(c.bucket[b])
-	for i < len(c.e) && c.e[i] <= x {
+	for i < len(c.p) && c.energy(i) <= x {
 		i++
 	}
 	return i
 }
 
-func (c *columnList) count(x float64) float64 {
-	i := c.upper(x)
-	if c.cum == nil || i == 0 {
-		return float64(i)
-	}
-	return c.cum[i-1]
-}
+// lists are the weight classes of one valley's column list.
+type lists []columnList
 
-// merge combines the weight classes into one sorted list.
-func merge(ctx context.Context, classes []class) (columnList, error) {
-	if len(classes) == 1 && classes[0].w == 1 {
-		return columnList{e: classes[0].e}, nil
+// count returns N₂(x), the weighted number of column energies ≤ x.
+func (ls lists) count(x float64) float64 {
+	var s float64
+	for i := range ls {
+		s += ls[i].w * float64(ls[i].upper(x))
 	}
-	total := 0
-	for _, c := range classes {
-		total += len(c.e)
-	}
-	out := columnList{e: make([]float64, 0, total), cum: make([]float64, 0, total)}
-	pos := make([]int, len(classes))
-	var run float64
-	for len(out.e) < total {
-		if len(out.e)%checkEvery == 0 && ctx.Err() != nil {
-			return columnList{}, ctx.Err()
-		}
-		best := -1
-		for i, c := range classes {
-			if pos[i] < len(c.e) && (best < 0 || c.e[pos[i]] < classes[best].e[pos[best]]) {
-				best = i
-			}
-		}
-		run += classes[best].w
-		out.e = append(out.e, classes[best].e[pos[best]])
-		out.cum = append(out.cum, run)
-		pos[best]++
-	}
-	return out, nil
+	return s
 }
 
 // valleyCounter counts one valley's states.
@@ -180,10 +133,9 @@ type valleyCounter struct {
 	conf   []ladder // confined axes; conf[0] is the outer loop
 	open   openPart
 	// For three confined axes: the energies ε_a + ε_b of the inner two axes,
-	// sorted once (by weight class, then merged and indexed in list), so
-	// that N₃(γ) = Σₙ w_n N₂(γ − εₙ) costs one bucket lookup per outer level.
-	classes []class
-	list    columnList
+	// sorted once by weight class, so that N₃(γ) = Σₙ w_n N₂(γ − εₙ) costs
+	// one bucket lookup per outer level and class.
+	list lists
 }
 
 // Counter counts the states of one conductor at energies up to the cap it
@@ -210,22 +162,11 @@ func (p Plan) Counter(ctx context.Context) (*Counter, error) {
 		vc := valleyCounter{weight: float64(p.c.SpinDegeneracy * v.Degeneracy), conf: vp.conf}
 		vc.open = newOpenPart(p.c.Axes, v.MassM0[:len(p.c.Axes)])
 		if vp.list {
-			cl, lists, err := columns(ctx, vc.conf[1], vc.conf[2], p.gmax-vc.conf[0].q*float64(vc.conf[0].first()))
+			ls, err := columns(ctx, vc.conf[1], vc.conf[2], p.gmax-vc.conf[0].q*float64(vc.conf[0].first()))
 			if err != nil {
 				return nil, err
 			}
-			vc.classes = cl
-			if len(cl) == 1 && cl[0].w == 1 {
-				// One class of weight 1 (two box axes): the list as built.
-				vc.list = lists[0]
-			} else {
-				if vc.list, err = merge(ctx, cl); err != nil {
-					return nil, err
-				}
-				if err := vc.list.index(ctx); err != nil {
-					return nil, err
-				}
-			}
+			vc.list = ls
 		}
 		k.valleys = append(k.valleys, vc)
 	}
@@ -234,7 +175,7 @@ func (p Plan) Counter(ctx context.Context) (*Counter, error) {
 
 // columns lists ε_a(n_a) + ε_b(n_b) ≤ gmax, grouped by weight, each group
 // sorted with its bucket index (sortedClass).
-func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, []columnList, error) {
+func columns(ctx context.Context, a, b ladder, gmax float64) (lists, error) {
 	// Weights are a.weight(i)·b.weight(j) ∈ {1, 2, 4}: class index by log₂.
 	// Count first, so each class is allocated once at its final size; the
 	// weights are constant for j ≥ first+1 on either ladder.
@@ -250,20 +191,18 @@ func columns(ctx context.Context, a, b ladder, gmax float64) ([]class, []columnL
 			sizes[weightClass(a.weight(i)*b.weight(b.first()+1))] += rest
 		}
 	}
-	var out []class
-	var lists []columnList
+	var out lists
 	for c, n := range sizes {
 		if n == 0 {
 			continue
 		}
 		l, err := sortedClass(ctx, a, b, gmax, c, n)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
-		out = append(out, class{w: [3]float64{1, 2, 4}[c], e: l.e})
-		lists = append(lists, l)
+		out = append(out, l)
 	}
-	return out, lists, nil
+	return out, nil
 }
 
 func weightClass(w float64) int { return int(w) / 2 }
@@ -278,12 +217,17 @@ func weightClass(w float64) int { return int(w) / 2 }
 // (about one entry a bucket, since the 2D density of states is flat). The
 // list costs 12 bytes an entry and little more at any time.
 func sortedClass(ctx context.Context, a, b ladder, gmax float64, c, n int) (columnList, error) {
-	l := columnList{e: make([]float64, n), bucket: make([]int32, n+1), scale: float64(n) / gmax}
+	l := columnList{a: a, b: b, w: [3]float64{1, 2, 4}[c], p: make([]uint32, n), bucket: make([]int32, n+1), scale: float64(n) / gmax}
 	idx := func(x float64) int { return min(max0(int(x*l.scale)), n-1) }
 	nc := min(1024, n)
 	bin := func(k int) int { return int(int64(k) * int64(nc) / int64(n)) }
-	rows := func(emit func(x float64)) error {
-		for i, na := a.first(), a.top(gmax); i <= na; i++ {
+	// The rows of the outer ladder are split between the workers, each
+	// counting (then placing) its own entries.
+	workers := runtime.GOMAXPROCS(0)
+	first, na := a.first(), a.top(gmax)
+	rows := func(w int, emit func(x float64, i, j int)) error {
+		span := (na - first + workers) / workers
+		for i, end := first+w*span, min(first+(w+1)*span-1, na); i <= end; i++ {
 			if i%256 == 0 && ctx.Err() != nil {
 				return ctx.Err()
 			}
@@ -291,56 +235,130 @@ func sortedClass(ctx context.Context, a, b ladder, gmax float64, c, n int) (colu
 			nb := b.top(gmax - ea)
 			for j := b.first(); j <= nb; j++ {
 				if weightClass(a.weight(i)*b.weight(j)) == c {
-					emit(ea + b.q*float64(j)*float64(j))
+					emit(ea+b.q*float64(j)*float64(j), i, j)
 				}
 			}
 		}
 		return nil
 	}
+	counts := make([][]int, workers)
+	if err := parallel(workers, func(w int) error {
+		counts[w] = make([]int, nc)
+		cw := counts[w]
+		return rows(w, func(x float64, _, _ int) { cw[bin(idx(x))]++ })
+	}); err != nil {
+		return l, err
+	}
+	// start[k] is where coarse bin k begins; each worker's entries of bin k
+	// follow those of the workers before it.
 	start := make([]int, nc+1)
-	if err := rows(func(x float64) { start[bin(idx(x))+1]++ }); err != nil {
+	for k := range nc {
+		start[k+1] = start[k]
+		for w := range workers {
+			start[k+1] += counts[w][k]
+		}
+	}
+	for k := range nc {
+		off := start[k]
+		for w := range workers {
+			n := counts[w][k]
+			counts[w][k] = off
+			off += n
+		}
+	}
+	if err := parallel(workers, func(w int) error {
+		cur := counts[w]
+		return rows(w, func(x float64, i, j int) {
+			k := bin(idx(x))
+			l.p[cur[k]] = uint32(i)<<16 | uint32(j)
+			cur[k]++
+		})
+	}); err != nil {
 		return l, err
 	}
-	for k := 1; k <= nc; k++ {
-		start[k] += start[k-1]
-	}
-	cur := slices.Clone(start[:nc])
-	if err := rows(func(x float64) { k := bin(idx(x)); l.e[cur[k]] = x; cur[k]++ }); err != nil {
-		return l, err
-	}
-	var tmp []float64
-	var fill []int32
-	for cb := 0; cb < nc; cb++ {
-		if ctx.Err() != nil {
-			return l, ctx.Err()
-		}
-		lo, hi := start[cb], start[cb+1]
-		seg := l.e[lo:hi]
-		// The fine buckets of this bin: kLo ≤ k < kHi. bucket[kLo] already
-		// holds lo (the end of the bin before).
-		kLo := int((int64(cb)*int64(n) + int64(nc) - 1) / int64(nc))
-		kHi := int((int64(cb+1)*int64(n) + int64(nc) - 1) / int64(nc))
-		for _, x := range seg {
-			l.bucket[idx(x)+1]++
-		}
-		for k := kLo + 1; k <= kHi; k++ {
-			l.bucket[k] += l.bucket[k-1]
-		}
-		fill = append(fill[:0], l.bucket[kLo:kHi]...)
-		tmp = slices.Grow(tmp[:0], len(seg))[:len(seg)]
-		for _, x := range seg {
-			f := &fill[idx(x)-kLo]
-			tmp[int(*f)-lo] = x
-			*f++
-		}
-		copy(seg, tmp)
-		for k := kLo; k < kHi; k++ {
-			if p, q := int(l.bucket[k]), int(l.bucket[k+1]); q-p > 1 {
-				slices.Sort(l.e[p:q])
+	// The coarse bins are sorted independently, the workers taking every
+	// workers-th bin; each writes only its own stretch of l.p and of the
+	// fine index.
+	err := parallel(workers, func(w int) error {
+		var es, tmpE []float64
+		var tmpP []uint32
+		var fill []int32
+		for cb := w; cb < nc; cb += workers {
+			if ctx.Err() != nil {
+				return ctx.Err()
 			}
+			lo, hi := start[cb], start[cb+1]
+			seg := l.p[lo:hi]
+			es = slices.Grow(es[:0], len(seg))[:len(seg)]
+			for k := range seg {
+				es[k] = l.energy(lo + k)
+			}
+			// The fine buckets of this bin: kLo ≤ k < kHi.
+			kLo := int((int64(cb)*int64(n) + int64(nc) - 1) / int64(nc))
+			kHi := int((int64(cb+1)*int64(n) + int64(nc) - 1) / int64(nc))
+			fill = append(fill[:0], make([]int32, kHi-kLo+1)...)
+			for _, x := range es {
+				fill[idx(x)-kLo+1]++
+			}
+			fill[0] = int32(lo)
+			for k := 1; k < len(fill); k++ {
+				fill[k] += fill[k-1]
+			}
+			copy(l.bucket[kLo:kHi], fill)
+			tmpE = slices.Grow(tmpE[:0], len(seg))[:len(seg)]
+			tmpP = slices.Grow(tmpP[:0], len(seg))[:len(seg)]
+			for k, x := range es {
+				f := &fill[idx(x)-kLo]
+				tmpE[int(*f)-lo] = x
+				tmpP[int(*f)-lo] = seg[k]
+				*f++
+			}
+			// Each fine bucket holds about one entry: insertion sort, or a
+			// full sort for a crowded one. l.bucket keeps the starts.
+			for k := kLo; k < kHi; k++ {
+				p, q := int(l.bucket[k])-lo, hi-lo
+				if k+1 < kHi {
+					q = int(l.bucket[k+1]) - lo
+				}
+				if q-p > 16 {
+					sort.Sort(byEnergy{tmpE[p:q], tmpP[p:q]})
+					continue
+				}
+				for u := p + 1; u < q; u++ {
+					for v := u; v > p && tmpE[v] < tmpE[v-1]; v-- {
+						tmpE[v], tmpE[v-1] = tmpE[v-1], tmpE[v]
+						tmpP[v], tmpP[v-1] = tmpP[v-1], tmpP[v]
+					}
+				}
+			}
+			copy(seg, tmpP)
 		}
+		return nil
+	})
+	l.bucket[n] = int32(n)
+	return l, err
+}
+
+// parallel runs f(0), …, f(workers−1) at once and returns the first error.
+func parallel(workers int, f func(w int) error) error {
+	var g errgroup.Group
+	for w := range workers {
+		g.Go(func() error { return f(w) })
 	}
-	return l, nil
+	return g.Wait()
+}
+
+// byEnergy sorts packed entries by their energies.
+type byEnergy struct {
+	e []float64
+	p []uint32
+}
+
+func (b byEnergy) Len() int           { return len(b.e) }
+func (b byEnergy) Less(i, j int) bool { return b.e[i] < b.e[j] }
+func (b byEnergy) Swap(i, j int) {
+	b.e[i], b.e[j] = b.e[j], b.e[i]
+	b.p[i], b.p[j] = b.p[j], b.p[i]
 }
 
 func max0(i int) int {
@@ -392,7 +410,7 @@ func (v *valleyCounter) count(g0 float64) float64 {
 			}
 		}
 	case 3:
-		if v.classes == nil {
+		if v.list == nil {
 			s = closedColumns(v.conf[0], v.conf[1], v.conf[2], g)
 			break
 		}
@@ -533,7 +551,7 @@ func (k *Counter) ascendingColumns(energiesEV []float64) bool {
 		return false
 	}
 	for _, v := range k.valleys {
-		if v.classes == nil {
+		if v.list == nil {
 			return false
 		}
 	}

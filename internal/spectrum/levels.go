@@ -254,7 +254,7 @@ func (k *Counter) levelsBelow(emaxEV float64) []weighted {
 
 func (k *Counter) hasColumns() bool {
 	for _, v := range k.valleys {
-		if v.classes != nil {
+		if v.list != nil {
 			return true
 		}
 	}
@@ -290,15 +290,17 @@ func (k *Counter) binnedColumns(ctx context.Context, lo, hi, etaEV float64, add 
 	}
 	for vi := range k.valleys {
 		v := &k.valleys[vi]
-		if v.classes == nil {
+		if v.list == nil {
 			// Not every valley need have three confined axes; none here can
 			// differ, since all valleys share the axes.
 			continue
 		}
 		// The inner list binned from γ = 0 at width h.
 		inner := make([]float64, int(ghi/h)+2)
-		for _, c := range v.classes {
-			for _, e := range c.e {
+		for ci := range v.list {
+			c := &v.list[ci]
+			for k := range c.p {
+				e := c.energy(k)
 				if e > ghi {
 					break
 				}

@@ -11,7 +11,7 @@ const (
 	opColumn      = 1  // one column counted in closed form along its third axis
 	opLookup      = 2  // one bucket lookup in a sorted column list
 	opListEntry   = 12 // building one list entry: generate, bucket-sort, merge, index
-	bytesPerEntry = 12 // energy (8) and its bucket (4); weighted lists add 8 for the running sum
+	bytesPerEntry = 8  // packed pair (4) and its bucket (4)
 )
 
 // DefaultEvals is the number of N(E) evaluations NewCounter plans for.
@@ -115,12 +115,9 @@ func (vp *valleyPlan) choose(gmax, evals float64) (build, bytes, perEval float64
 			best, bestConf, vp.list = c, [3]ladder{a, b, orig[k]}, false
 			build, bytes, perEval = 0, 0, cols*opColumn
 		}
-		per := float64(bytesPerEntry)
-		if a.ring || b.ring {
-			per += 8
-		}
-		lb := cols * per
-		if lb > MaxListBytes {
+		lb := cols * bytesPerEntry
+		// Entries pack their level indices in 16 bits each.
+		if lb > MaxListBytes || a.top(gmax) > 0xffff || b.top(gmax) > 0xffff {
 			continue
 		}
 		outer := float64(orig[k].levels(gmax)) + 1

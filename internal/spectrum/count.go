@@ -207,15 +207,17 @@ func columns(ctx context.Context, a, b ladder, gmax float64) (lists, error) {
 
 func weightClass(w float64) int { return int(w) / 2 }
 
-// sortedClass returns the n column energies of weight class c, sorted, with
-// their bucket index over n buckets of [0, gmax]. It generates them twice
-// instead of storing and sorting them: a first pass counts the entries of
-// each of (at most) 1024 coarse bins, a second drops each entry into its
-// coarse bin (1024 write streams, which the caches hold, where n buckets
-// would miss on every write), and each coarse bin is then bucket-sorted in
-// a small buffer, which fills its stretch of the fine index as it goes
-// (about one entry a bucket, since the 2D density of states is flat). The
-// list costs 12 bytes an entry and little more at any time.
+// sortedClass returns the n column entries of weight class c, sorted by
+// energy, with their bucket index over n buckets of [0, gmax]. It generates
+// them twice instead of storing and sorting them: a first pass counts the
+// entries of each of (at most) 1024 coarse bins, a second drops each entry
+// into its coarse bin (1024 write streams, which the caches hold, where n
+// buckets would miss on every write), and each coarse bin is then
+// bucket-sorted in a small buffer, which fills its stretch of the fine
+// index as it goes (about one entry a bucket, since the 2D density of
+// states is flat). Both passes split the rows, and the sort the coarse
+// bins, between the cores. The list costs 8 bytes an entry and little
+// more at any time.
 func sortedClass(ctx context.Context, a, b ladder, gmax float64, c, n int) (columnList, error) {
 	l := columnList{a: a, b: b, w: [3]float64{1, 2, 4}[c], p: make([]uint32, n), bucket: make([]int32, n+1), scale: float64(n) / gmax}
 	idx := func(x float64) int { return min(max0(int(x*l.scale)), n-1) }

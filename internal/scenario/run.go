@@ -369,19 +369,30 @@ func Observe(ctx context.Context, s Scenario) (*Point, error) {
 // a source (a scenario that is all box, say) share its thermal integrals,
 // the costly part, instead of computing them again.
 func observeAll(ctx context.Context, s Scenario, srcs map[string]*source, ef float64) (map[string]Observables, error) {
-	out := make(map[string]Observables, len(Variants))
-	done := map[*source]Observables{}
+	// The distinct sources are observed at once, one goroutine each.
+	var uniq []*source
+	idx := map[*source]int{}
 	for _, name := range Variants {
-		src := srcs[name]
-		o, ok := done[src]
-		if !ok {
-			var err error
-			if o, err = observe(ctx, s, src, ef); err != nil {
-				return nil, err
-			}
-			done[src] = o
+		if _, ok := idx[srcs[name]]; !ok {
+			idx[srcs[name]] = len(uniq)
+			uniq = append(uniq, srcs[name])
 		}
-		out[name] = o
+	}
+	obs := make([]Observables, len(uniq))
+	var g errgroup.Group
+	for i, src := range uniq {
+		g.Go(func() error {
+			var err error
+			obs[i], err = observe(ctx, s, src, ef)
+			return err
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
+	}
+	out := make(map[string]Observables, len(Variants))
+	for _, name := range Variants {
+		out[name] = obs[idx[srcs[name]]]
 	}
 	return out, nil
 }

@@ -780,14 +780,25 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	kT := s.KTEV()
 	in := v.integrator()
 	o := Observables{DensityUnit: s.DensityUnit()}
+	// slope is dN/dE_F averaged over −∂f/∂E, for C_Q (at T > 0).
 	occ, slope, bySub, err := bySubband(ctx, v.states, ef, kT)
 	if err != nil {
 		return o, err
 	}
-	if bySub {
+	switch {
+	case bySub:
 		o.Electrons = occ
-	} else if o.Electrons, err = average(ctx, in, v.stateCurve, ef, kT); err != nil {
-		return o, err
+	case kT > 0:
+		// One refinement gives the electrons and C_Q.
+		n, d, err := in.OccupiedAndSlope(ctx, v.stateCurve, ef, kT)
+		if err != nil {
+			return o, canceled(err)
+		}
+		o.Electrons, slope = n.Value, d.Value
+	default:
+		if o.Electrons, err = average(ctx, in, v.stateCurve, ef, kT); err != nil {
+			return o, err
+		}
 	}
 	o.Density = o.Electrons * s.densityScale()
 	vol := v.cond.Volume() * math.Pow(100, float64(s.Dims))
@@ -817,14 +828,8 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	// C_Q = q²·∫D(−∂f/∂E)dE; with D in 1/eV that is q·D in F.
 	var dq float64
 	switch {
-	case bySub:
-		dq = slope
 	case kT > 0:
-		est, err := in.Slope(ctx, v.stateCurve, ef, kT)
-		if err != nil {
-			return o, canceled(err)
-		}
-		dq = est.Value
+		dq = slope
 	default:
 		d, err := v.dos(ctx, s, []float64{ef})
 		if err != nil {

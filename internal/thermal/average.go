@@ -151,6 +151,38 @@ func (in Integrator) Occupied(ctx context.Context, c Curve, efEV, kTEV float64) 
 	}, nil
 }
 
+// OccupiedAndSlope returns Occupied and Slope from one refinement: the
+// cells Occupied refines also carry the Slope's sum, with its own bound
+// (rigorous in the window like Slope's, but not driven to the tolerance),
+// for half the curve evaluations of the two. kTEV must be > 0.
+func (in Integrator) OccupiedAndSlope(ctx context.Context, c Curve, efEV, kTEV float64) (occ, slope Estimate, err error) {
+	if err := checkArgs(efEV, kTEV); err != nil {
+		return occ, slope, err
+	}
+	in = in.withDefaults()
+	if kTEV == 0 || in.collapsed(efEV, kTEV) {
+		return occ, slope, fmt.Errorf("thermal: OccupiedAndSlope: %w", ErrZeroTemperature)
+	}
+	w := func(e float64) float64 { return FermiDirac(e, efEV, kTEV) }
+	k := func(e float64) float64 { return Kernel(e, efEV, kTEV) }
+	r, err := in.run2(ctx, c, efEV, kTEV, w, k, true)
+	if err != nil {
+		return occ, slope, err
+	}
+	tail := (1-w(r.lo))*math.Abs(r.cLo) + w(r.hi)*math.Abs(r.cHi)
+	tail2 := k(r.lo)*math.Abs(r.cLo) + k(r.hi)*math.Abs(r.cHi)
+	base2 := 0.0
+	if r.atEdge {
+		tail, tail2 = w(r.hi)*math.Abs(r.cHi), k(r.hi)*math.Abs(r.cHi)
+		base2 = k(r.lo) * r.cLo
+	}
+	occ = Estimate{Value: r.base + r.sum, ErrBound: r.bound + tail, Evals: r.evals, Converged: r.converged}
+	bound2 := r.bound2 + tail2
+	slope = Estimate{Value: base2 + r.sum2, ErrBound: bound2, Evals: r.evals,
+		Converged: bound2 <= in.RelTol*math.Abs(base2+r.sum2)}
+	return occ, slope, nil
+}
+
 // Slope is the package function Slope with this Integrator's settings.
 func (in Integrator) Slope(ctx context.Context, c Curve, efEV, kTEV float64) (Estimate, error) {
 	if err := checkArgs(efEV, kTEV); err != nil {
@@ -328,11 +360,19 @@ type runResult struct {
 	cLo, cHi   float64 // c at the window ends
 	evals      int
 	converged  bool
+	// With a second weight: its Σ estimates and Σ bounds on the same cells.
+	sum2, bound2 float64
 }
 
 // run refines ∫_(lo,hi] w dc. offsetByCLo adds c(lo) to the value the
 // relative tolerance is measured against (Occupied).
 func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w func(float64) float64, offsetByCLo bool) (runResult, error) {
+	return in.run2(ctx, c, efEV, kTEV, w, nil, offsetByCLo)
+}
+
+// run2 is run that also sums a second weight w2 (if not nil) over the
+// cells the first one refined, at no further curve evaluations.
+func (in Integrator) run2(ctx context.Context, c Curve, efEV, kTEV float64, w, w2 func(float64) float64, offsetByCLo bool) (runResult, error) {
 	ws := workspaces.Get().(*workspace)
 	defer workspaces.Put(ws)
 	var r runResult
@@ -456,6 +496,12 @@ func (in Integrator) run(ctx context.Context, c Curve, efEV, kTEV float64, w fun
 		}
 	}
 	r.sum, r.bound = finalTotals(ws.cells, w)
+	if w2 != nil {
+		for i := range ws.cells {
+			ws.cells[i].wa, ws.cells[i].wb = w2(ws.cells[i].a), w2(ws.cells[i].b)
+		}
+		r.sum2, r.bound2 = finalTotals(ws.cells, w2)
+	}
 	return r, nil
 }
 

@@ -170,3 +170,63 @@ func BenchmarkKaneWireTable(b *testing.B) {
 		}
 	}
 }
+
+// OccupiedAndSlope's slope, summed on the cells the occupation refined,
+// against the 3D band's closed forms: for c(E) = E^(3/2),
+// ∫ f dc = (3/2)Γ(3/2)(k_BT)^(3/2)ℱ_{1/2}(η) and the slope
+// (3/2)Γ(3/2)(k_BT)^(1/2)ℱ_{−1/2}(η) (DLMF 25.12.14), at the integrator
+// caps the counts use, where it must be as good as a Slope refined on its
+// own; and against a separate Slope on a dense staircase of random
+// levels, within the two bounds. The occupation is Occupied's exactly.
+func TestOccupiedAndSlope(t *testing.T) {
+	ctx := context.Background()
+	band := smooth(func(e float64) float64 {
+		if e <= 0 {
+			return 0
+		}
+		return e * math.Sqrt(e)
+	})
+	kT := KT(300)
+	for _, ef := range []float64{-0.1, 0, 0.05, 0.5} {
+		for _, evals := range []int{300, 2000} {
+			in := Integrator{RelTol: 1e-6, MaxEvals: evals, HasEdge: true}
+			occ, sl, err := in.OccupiedAndSlope(ctx, band, ef, kT)
+			if err != nil {
+				t.Fatal(err)
+			}
+			eta := ef / kT
+			wantN := 1.5 * halfSqrtPi * math.Pow(kT, 1.5) * FermiDiracIntegral(0.5, eta)
+			wantS := 1.5 * halfSqrtPi * math.Sqrt(kT) * FermiDiracIntegral(-0.5, eta)
+			sep, err := in.Slope(ctx, band, ef, kT)
+			if err != nil {
+				t.Fatal(err)
+			}
+			// As accurate as a Slope refined on its own (or 1e-6).
+			tol := math.Max(2*relErr(sep.Value, wantS), 1e-6)
+			if o, _ := in.Occupied(ctx, band, ef, kT); occ.Value != o.Value || relErr(sl.Value, wantS) > tol {
+				t.Errorf("E_F %g, %d evaluations: %.10g, %.10g; closed forms %.10g, %.10g; separate slope %.10g",
+					ef, evals, occ.Value, sl.Value, wantN, wantS, sep.Value)
+			}
+		}
+	}
+	rng := rand.New(rand.NewPCG(3, 5))
+	levels := make([]float64, 20000)
+	jumps := make([]float64, len(levels))
+	for i := range levels {
+		levels[i] = 0.2 * rng.Float64()
+		jumps[i] = float64(1 + rng.IntN(4))
+	}
+	st := newStaircase(levels, jumps)
+	in := Integrator{RelTol: 1e-6, MaxEvals: 2000, HasEdge: true}
+	_, sl, err := in.OccupiedAndSlope(ctx, st.curve, 0.1, kT)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ref, err := Integrator{RelTol: 1e-9, MaxEvals: 200000, HasEdge: true}.Slope(ctx, st.curve, 0.1, kT)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := math.Abs(sl.Value - ref.Value); d > sl.ErrBound+ref.ErrBound || d > 1e-4*ref.Value {
+		t.Errorf("staircase slope %.10g ± %.2g, separate %.10g ± %.2g", sl.Value, sl.ErrBound, ref.Value, ref.ErrBound)
+	}
+}

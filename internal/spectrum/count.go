@@ -82,8 +82,8 @@ func (p openPart) slope(x float64) float64 {
 // its energy is recomputed by the expression that sorted it, so it
 // compares the same. An entry costs 8 bytes with its bucket.
 type columnList struct {
-	a, b   ladder
-	w      float64 // the weight each entry stands for
+	sa, sb []float64 // ε_a(i) and ε_b(j) by index: energy is one add
+	w      float64   // the weight each entry stands for
 	p      []uint32
 	bucket []int32 // bucket[k] = number of entries below k/scale
 	scale  float64
@@ -91,8 +91,7 @@ type columnList struct {
 
 // energy returns the column energy of entry k.
 func (c *columnList) energy(k int) float64 {
-	i, j := float64(c.p[k]>>16), float64(c.p[k]&0xffff)
-	return c.a.q*i*i + c.b.q*j*j
+	return c.sa[c.p[k]>>16] + c.sb[c.p[k]&0xffff]
 }
 
 // checkEvery is how many entries a build handles between checks of its
@@ -219,7 +218,7 @@ func weightClass(w float64) int { return int(w) / 2 }
 // bins, between the cores. The list costs 8 bytes an entry and little
 // more at any time.
 func sortedClass(ctx context.Context, a, b ladder, gmax float64, c, n int) (columnList, error) {
-	l := columnList{a: a, b: b, w: [3]float64{1, 2, 4}[c], p: make([]uint32, n), bucket: make([]int32, n+1), scale: float64(n) / gmax}
+	l := columnList{sa: squares(a, gmax), sb: squares(b, gmax), w: [3]float64{1, 2, 4}[c], p: make([]uint32, n), bucket: make([]int32, n+1), scale: float64(n) / gmax}
 	idx := func(x float64) int { return min(max0(int(x*l.scale)), n-1) }
 	nc := min(1024, n)
 	bin := func(k int) int { return int(int64(k) * int64(nc) / int64(n)) }
@@ -348,6 +347,16 @@ func parallel(workers int, f func(w int) error) error {
 		g.Go(func() error { return f(w) })
 	}
 	return g.Wait()
+}
+
+// squares returns l.q·n² for n = 0 … top(gmax), by the expression the
+// column energies are generated with.
+func squares(l ladder, gmax float64) []float64 {
+	out := make([]float64, max(l.top(gmax), 0)+1)
+	for n := range out {
+		out[n] = l.q * float64(n) * float64(n)
+	}
+	return out
 }
 
 // byEnergy sorts packed entries by their energies.

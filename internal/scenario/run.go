@@ -85,8 +85,6 @@ type source struct {
 	cond     spectrum.Conductor
 	states   *spectrum.Counter // nil: asymptotic (Weyl)
 	modes    *spectrum.Counter // nil: asymptotic (Weyl modes)
-	along    int
-	smooth   bool    // the continuum: analytic throughout
 	evalOps  float64 // cost of one N(E) evaluation
 	edge     float64 // N(E) is zero below this energy
 	modeEdge float64 // and M(E) below this
@@ -562,7 +560,7 @@ func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor,
 			srcs[name] = src
 			continue
 		}
-		src := &source{cond: cond, along: s.Along, smooth: name == "continuum", edge: cond.Edge()}
+		src := &source{cond: cond, edge: cond.Edge()}
 		top := sp.top(cond)
 		byKey[key] = src
 		srcs[name] = src

@@ -94,10 +94,6 @@ func (c *columnList) energy(k int) float64 {
 	return c.sa[c.p[k]>>16] + c.sb[c.p[k]&0xffff]
 }
 
-// checkEvery is how many entries a build handles between checks of its
-// context.
-const checkEvery = 1 << 16
-
 // upper returns the number of entries ≤ x.
 func (c *columnList) upper(x float64) int {
 	if x < 0 || len(c.p) == 0 {
@@ -152,8 +148,8 @@ type Counter struct {
 	valleys  []valleyCounter
 }
 
-// Counter builds the counter the plan describes. Column builds, sorts and
-// merges check ctx.
+// Counter builds the counter the plan describes. Column builds and sorts
+// check ctx.
 func (p Plan) Counter(ctx context.Context) (*Counter, error) {
 	k := &Counter{c: p.c, gammaMax: p.gmax}
 	for i, v := range p.c.Valleys {

@@ -150,15 +150,6 @@ func pairs(a, b ladder, g float64) float64 {
 // exactPairs is the level count up to which pairs counts exactly.
 const exactPairs = 1 << 14
 
-// Work estimates what counting c up to emaxEV costs: ops for building the
-// counter plus evals evaluations of N(E), and the bytes the counter holds,
-// for the plan NewPlan chooses. Callers compare it with a budget before
-// they build anything.
-func Work(c Conductor, emaxEV float64, evals int) (ops, bytes float64) {
-	p := NewPlan(c, emaxEV, evals)
-	return p.Ops, p.Bytes
-}
-
 // NewCounter prepares the counts of c for energies up to emaxEV with the
 // plan for DefaultEvals evaluations; see NewPlan and Plan.Counter.
 func NewCounter(ctx context.Context, c Conductor, emaxEV float64) (*Counter, error) {

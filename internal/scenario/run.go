@@ -85,9 +85,9 @@ type source struct {
 	cond     spectrum.Conductor
 	states   *spectrum.Counter // nil: asymptotic (Weyl)
 	modes    *spectrum.Counter // nil: asymptotic (Weyl modes)
-	evalOps  float64 // cost of one N(E) evaluation
-	edge     float64 // N(E) is zero below this energy
-	modeEdge float64 // and M(E) below this
+	evalOps  float64           // cost of one N(E) evaluation
+	edge     float64           // N(E) is zero below this energy
+	modeEdge float64           // and M(E) below this
 	// weylStates and weylModes are the non-decreasing envelopes of the
 	// smooth counts that stand in for the exact ones above the budget.
 	weylStates, weylModes func(eEV float64) float64

@@ -406,20 +406,23 @@ func flatten(q map[string][]string) map[string]string {
 // span is the energy range a run reads. The thermal integrals of a variant
 // read up to max(E_F, edge) + W·k_BT (W from relTol; the edge is the
 // variant's lowest level, where the window starts when E_F is below it).
-// With curves the range also covers emax (and the line shape's reach
-// beyond it, for a broadened D(E)) and the at energies. Nothing else sets
-// it: emax alone never moves the observables.
+// With curves the range also covers emax and the at energies. A fully
+// confined variant's broadened D(E) reads the levels its line shape
+// reaches above that, and above E_F at T = 0, where C_Q is D(E_F).
+// Nothing else sets it: emax alone never moves the observables.
 type span struct {
 	ef      float64 // the highest E_F the integrals are centred on
 	solveHi float64 // with a density: E_F is looked for below this
 	curves  float64 // the top of the curves and point values (0 without)
 	w       float64 // the thermal window above E_F
+	reach   float64 // how far above a level its line shape reaches
 	kT      float64
 	along   int
 }
 
 func newSpan(s Scenario, conds map[string]spectrum.Conductor, ef float64, curves bool) span {
-	sp := span{ef: ef, w: thermal.WindowFor(relTol) * s.KTEV(), kT: s.KTEV(), along: s.Along}
+	sp := span{ef: ef, w: thermal.WindowFor(relTol) * s.KTEV(), kT: s.KTEV(), along: s.Along,
+		reach: spectrum.Reach(s.Eta(), s.Shape)}
 	if s.HasDensity {
 		// The bulk E_F at the same density shifted by the scenario's
 		// confinement, with room: the solve brackets below it.
@@ -428,9 +431,6 @@ func newSpan(s Scenario, conds map[string]spectrum.Conductor, ef float64, curves
 	}
 	if curves {
 		sp.curves = s.EmaxEV
-		if s.Conductor().Confined() {
-			sp.curves += spectrum.Reach(s.Eta(), s.Shape)
-		}
 		for _, e := range s.AtEV {
 			sp.curves = math.Max(sp.curves, e)
 		}
@@ -442,7 +442,16 @@ func newSpan(s Scenario, conds map[string]spectrum.Conductor, ef float64, curves
 // and its modes, which start at the transverse edge.
 func (sp span) top(c spectrum.Conductor) float64 {
 	t := math.Max(sp.thermal(c.Edge()), sp.thermal(c.Transverse(sp.along).Edge()))
-	return math.Max(math.Max(t, sp.curves), 1e-3)
+	hi := sp.curves
+	if c.Confined() {
+		if hi > 0 {
+			hi += sp.reach
+		}
+		if sp.kT == 0 {
+			hi = math.Max(hi, sp.ef+sp.reach)
+		}
+	}
+	return math.Max(math.Max(t, hi), 1e-3)
 }
 
 // thermal returns the top of the thermal window for a curve that starts at

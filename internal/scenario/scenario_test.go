@@ -245,21 +245,33 @@ func TestLongWireAsymptotic(t *testing.T) {
 }
 
 // TestObserveQuantumCapacitanceAtZeroTemperature: the lean path broadens the
-// levels of a fully confined conductor as the full run does.
+// levels of a fully confined conductor as the full run does, including a
+// level just above E_F that its peak reaches (GaAs 10 nm cube, levels at
+// 0.289 and 0.409 eV, E_F 0.40 eV, η 5 meV): identity, and the same with
+// emax raised past that level.
 func TestObserveQuantumCapacitanceAtZeroTemperature(t *testing.T) {
-	q, _ := url.ParseQuery("bz=box&temp=0&ef=0.2")
-	s, _ := Parse(q)
-	full, err := Run(context.Background(), s)
-	if err != nil {
-		t.Fatal(err)
+	base := "material=gaas&lx=10nm&ly=10nm&lz=10nm&bz=box&eta=5meV&ef=0.40&temp=0"
+	ref := runQ(t, base+"&emax=0.6").Observables["scenario"].QuantumCapacitance
+	if ref <= 0 {
+		t.Fatalf("C_Q %g at 9 meV below a level", ref)
 	}
-	p, err := Observe(context.Background(), s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	a, b := p.Observables["scenario"].QuantumCapacitance, full.Observables["scenario"].QuantumCapacitance
-	if b <= 0 || math.Abs(a/b-1) > 1e-9 {
-		t.Errorf("Observe C_Q %g, Run %g", a, b)
+	for _, raw := range []string{"bz=box&temp=0&ef=0.2", base + "&emax=0.3"} {
+		s := parseQ(t, raw)
+		full, err := Run(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p, err := Observe(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a, b := p.Observables["scenario"].QuantumCapacitance, full.Observables["scenario"].QuantumCapacitance
+		if b <= 0 || math.Abs(a/b-1) > 1e-9 {
+			t.Errorf("%s: Observe C_Q %g, Run %g", raw, a, b)
+		}
+		if raw != "bz=box&temp=0&ef=0.2" && relErr(a, ref) > 1e-9 {
+			t.Errorf("%s: C_Q %g, with emax 0.6 %g", raw, a, ref)
+		}
 	}
 }
 

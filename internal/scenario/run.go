@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"golang.org/x/sync/errgroup"
 
@@ -86,6 +87,7 @@ type source struct {
 	states   *spectrum.Counter // nil: asymptotic (Weyl)
 	modes    *spectrum.Counter // nil: asymptotic (Weyl modes)
 	evalOps  float64           // cost of one N(E) evaluation
+	modeOps  float64           // and of one M(E) evaluation
 	edge     float64           // N(E) is zero below this energy
 	modeEdge float64           // and M(E) below this
 	// weylStates and weylModes are the non-decreasing envelopes of the
@@ -472,6 +474,16 @@ type method struct {
 	variant    string
 }
 
+// consider adds the states plan p of a variant: the method is asymptotic
+// when any plan is over the budget or the memory cap, and it keeps the
+// dearest plan that is over (or, while none is, the dearest) for its note.
+func (m *method) consider(variant string, p spectrum.Plan, budget float64) {
+	over := p.Ops > budget || p.Bytes > maxCounterBytes
+	if (over && !m.asymptotic) || (over == m.asymptotic && p.Ops > m.ops) {
+		m.ops, m.bytes, m.variant, m.asymptotic = p.Ops, p.Bytes, variant, over
+	}
+}
+
 func (m method) String() string {
 	if m.asymptotic {
 		return "asymptotic"
@@ -480,36 +492,54 @@ func (m method) String() string {
 }
 
 func (m method) note(budget float64) string {
-	why := fmt.Sprintf("its cheapest exact plan needs about %.2g operations, over the budget of %.2g", m.ops, budget)
-	if m.bytes > maxCounterBytes {
-		why = fmt.Sprintf("its cheapest exact plan would hold %.0f MB, over %d MB", m.bytes/1e6, maxCounterBytes>>20)
+	var why []string
+	if m.ops > budget {
+		why = append(why, fmt.Sprintf("needs about %.2g operations, over the budget of %.2g", m.ops, budget))
 	}
-	return "Asymptotic: the exact " + m.variant + " count is too dear (" + why + "), so box, ring and scenario counts are the smooth (Weyl) counts, with the error estimate given."
+	if m.bytes > maxCounterBytes {
+		why = append(why, fmt.Sprintf("would hold %.0f MB, over %d MB", m.bytes/1e6, maxCounterBytes>>20))
+	}
+	return "Asymptotic: the exact " + m.variant + " count is too dear (its cheapest exact plan " + strings.Join(why, " and ") + "), so box, ring and scenario counts are the smooth (Weyl) counts, with the error estimate given."
 }
 
-// evals estimates the N(E) evaluations a run makes on one variant: the
-// curves and point values, the bins of a broadened D(E), and the thermal
-// integrals at the cap the integrator puts on them (and some forty more
-// for a Fermi level solved from a density).
-func evals(s Scenario, c spectrum.Conductor, evalOps float64) int {
+// evals estimates the N(E) evaluations a run makes on one counter of
+// conductor c, the states or (modes) the transverse modes, from a probe
+// plan of it: the curves and point values; for the states of a fully
+// confined conductor the bins of a broadened D(E); and the thermal
+// average, one refinement for the electrons and C_Q together, capped by
+// the integrator, or one pass over the subbands where bySubband sums
+// them; and for the states the averages of a Fermi level solved from a
+// density.
+func evals(s Scenario, c spectrum.Conductor, probe spectrum.Plan, modes bool) int {
 	n := s.Points + len(s.AtEV) + 2
-	if c.Confined() {
-		n += 16_384
+	averages := 1
+	if !modes {
+		if c.Confined() {
+			n += spectrum.MaxBroadeningBins
+		}
+		if s.HasDensity {
+			averages += solveAverages
+		}
 	}
-	integrals := 0
+	per := 1 // at T = 0 an average is one evaluation
 	if s.KTEV() > 0 {
-		integrals = 3
+		per = maxEvals(probe.PerEval)
+		if summedBySubband(c) && probe.Subbands <= maxSubbands {
+			per = subbandEvals
+		}
 	}
-	if s.HasDensity {
-		integrals += 40
-	}
-	perIntegral := maxEvals(evalOps)
-	if summedBySubband(c) && evalOps <= maxSubbands {
-		// One pass over the subbands, about one evaluation's work.
-		perIntegral = 1
-	}
-	return n + integrals*perIntegral
+	return n + averages*per
 }
+
+// solveAverages bounds the averages a Fermi-level solve takes: the
+// bracket's 19 steps (bracketBelow) and the ITP solve's at most
+// ⌈log₂(range/2ε)⌉ + 1, about 42 for a 1 eV range at ε = 1e-12 eV.
+const solveAverages = 60
+
+// subbandEvals is the price of one pass of bySubband in evaluations: each
+// subband costs about 30 operations where an evaluation costs about one a
+// subband (Plan.PerEval).
+const subbandEvals = 30
 
 // summedBySubband reports whether bySubband takes the thermal sums of c:
 // one or two open axes, or two confined axes and none open.
@@ -526,13 +556,13 @@ func summedBySubband(c spectrum.Conductor) bool {
 // plan prices the exact count of one variant (states and, along the
 // transport axis, modes) with the evaluations a run makes.
 func plan(s Scenario, c spectrum.Conductor, top float64) (states, modes spectrum.Plan, modesExact bool) {
-	per := spectrum.NewPlan(c, top, spectrum.DefaultEvals).PerEval
-	states = spectrum.NewPlan(c, top, evals(s, c, per))
+	probe := spectrum.NewPlan(c, top, spectrum.DefaultEvals)
+	states = spectrum.NewPlan(c, top, evals(s, c, probe, false))
 	// A conductor with one axis has a transverse conductor of none: one
 	// mode per valley and spin above the edge.
 	tr := c.Transverse(s.Along)
-	per = spectrum.NewPlan(tr, top, spectrum.DefaultEvals).PerEval
-	modes = spectrum.NewPlan(tr, top, evals(s, tr, per))
+	probe = spectrum.NewPlan(tr, top, spectrum.DefaultEvals)
+	modes = spectrum.NewPlan(tr, top, evals(s, tr, probe, true))
 	modesExact = modes.Ops <= s.Budget && modes.Bytes <= maxCounterBytes
 	return states, modes, modesExact
 }
@@ -550,12 +580,7 @@ func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor,
 		if name == "continuum" {
 			continue
 		}
-		if st.Ops > m.ops || st.Bytes > maxCounterBytes {
-			m.ops, m.bytes, m.variant = st.Ops, st.Bytes, name
-		}
-		if st.Ops > s.Budget || st.Bytes > maxCounterBytes {
-			m.asymptotic = true
-		}
+		m.consider(name, st, s.Budget)
 	}
 	srcs := map[string]*source{}
 	var g errgroup.Group
@@ -586,9 +611,12 @@ func build(ctx context.Context, s Scenario, conds map[string]spectrum.Conductor,
 			src.weylModes = smooth.Monotone(func(e float64) float64 { return smooth.WeylModes(cond, s.Along, e) }, top)
 		}
 		p := plans[name]
-		src.evalOps = p[0].PerEval
+		src.evalOps, src.modeOps = p[0].PerEval, p[1].PerEval
 		if !exactStates {
 			src.evalOps = 1
+		}
+		if !exactModes[name] {
+			src.modeOps = 1
 		}
 		g.Go(func() error {
 			if exactStates {
@@ -812,7 +840,7 @@ func observe(ctx context.Context, s Scenario, v *source, ef float64) (Observable
 	o.VolumeDensity = o.Electrons / vol
 	o.VolumeDensityUnit = [...]string{"", "cm^-1", "cm^-2", "cm^-3"}[s.Dims]
 	inModes := in
-	inModes.Edge = v.modeEdge
+	inModes.Edge, inModes.MaxEvals = v.modeEdge, maxEvals(v.modeOps)
 	if m, _, ok, err := bySubband(ctx, v.modes, ef, kT); err != nil {
 		return o, err
 	} else if ok {

@@ -5,8 +5,11 @@ import (
 	"encoding/json"
 	"math"
 	"net/url"
+	"strings"
 	"testing"
 	"time"
+
+	"ringbox/internal/spectrum"
 )
 
 func TestParseErrorsNameTheKey(t *testing.T) {
@@ -161,6 +164,32 @@ func TestAsymptoticFallback(t *testing.T) {
 	d := math.Abs(exact.StatesBelow - res.StatesBelow)
 	if d > *res.ErrorEstimate {
 		t.Errorf("|exact − asymptotic| = %g beyond the estimate %g", d, *res.ErrorEstimate)
+	}
+}
+
+// TestAsymptoticNoteNamesTheCause: the note gives the reason of the plan
+// that is over, not of a dearer one within the budget (identity).
+func TestAsymptoticNoteNamesTheCause(t *testing.T) {
+	var m method
+	m.consider("scenario", spectrum.Plan{Ops: 1e8, Bytes: 600 << 20}, 1e10)
+	m.consider("box", spectrum.Plan{Ops: 5e9}, 1e10)
+	m.consider("ring", spectrum.Plan{Ops: 2e9}, 1e10)
+	if !m.asymptotic || m.variant != "scenario" {
+		t.Fatalf("%+v", m)
+	}
+	if n := m.note(1e10); !strings.Contains(n, "629 MB, over 512 MB") || strings.Contains(n, "operations") {
+		t.Errorf("note %q", n)
+	}
+	m = method{}
+	m.consider("box", spectrum.Plan{Ops: 5e9}, 1e10)
+	m.consider("ring", spectrum.Plan{Ops: 3e10}, 1e10)
+	if n := m.note(1e10); !m.asymptotic || !strings.Contains(n, "exact ring count") || !strings.Contains(n, "3e+10 operations") {
+		t.Errorf("%+v: note %q", m, n)
+	}
+	m = method{}
+	m.consider("box", spectrum.Plan{Ops: 5e9}, 1e10)
+	if m.asymptotic {
+		t.Errorf("%+v within the budget", m)
 	}
 }
 

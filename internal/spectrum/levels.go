@@ -133,13 +133,14 @@ func Reach(etaEV float64, shape Shape) float64 {
 // exact peak per level; above it the levels are binned first.
 const maxEnumerated = 100_000
 
-// maxBins caps the bins of the binned broadening.
-const maxBins = 16_384
+// MaxBroadeningBins caps the bins of the binned broadening: Broadened
+// evaluates N(E) at most this many times (plus one).
+const MaxBroadeningBins = 16_384
 
 // Broadened returns D(E) at ascending energies for a fully confined conductor: every level a
 // normalised Gaussian (standard deviation etaEV) or Lorentzian (half width
 // etaEV), in states per eV, and the broadening actually used (wider than
-// etaEV only when more than maxBins bins would be needed).
+// etaEV only when more than MaxBroadeningBins bins would be needed).
 //
 // Small conductors sum one peak per level exactly. Large ones bin the level
 // count N(E) at a width of at most η/8 (cloud-in-cell would add nothing: the
@@ -195,8 +196,8 @@ func (k *Counter) Broadened(ctx context.Context, energiesEV []float64, etaEV flo
 	}
 	bins := int(math.Ceil((hi - lo) / (etaEV / 8)))
 	used := etaEV
-	if bins > maxBins {
-		bins = maxBins
+	if bins > MaxBroadeningBins {
+		bins = MaxBroadeningBins
 		used = math.Max(etaEV, (hi-lo)/float64(bins)*8)
 	}
 	edges := make([]float64, bins+1)
@@ -270,8 +271,8 @@ func (k *Counter) binnedColumns(ctx context.Context, lo, hi, etaEV float64, add 
 	// keeps each level's weight centred where it belongs.
 	h := etaEV / 4
 	used := etaEV
-	if (ghi-glo)/h > maxBins {
-		h = (ghi - glo) / maxBins
+	if (ghi-glo)/h > MaxBroadeningBins {
+		h = (ghi - glo) / MaxBroadeningBins
 		used = 4 * h
 	}
 	nb := int(math.Ceil((ghi-glo)/h)) + 2

@@ -38,9 +38,13 @@ type Plan struct {
 	Ops     float64 // building the counter plus the evaluations
 	PerEval float64 // one evaluation of N(E)
 	Bytes   float64 // what the counter holds
-	c       Conductor
-	gmax    float64
-	v       []valleyPlan
+	// Subbands is the number of subbands below the top (over the
+	// valleys; see Counter.Subbands), or an upper bound where counting
+	// them would cost more than the plan; +Inf with three confined axes.
+	Subbands float64
+	c        Conductor
+	gmax     float64
+	v        []valleyPlan
 }
 
 type valleyPlan struct {
@@ -71,20 +75,26 @@ func NewPlan(c Conductor, emaxEV float64, evals int) Plan {
 		n := func(l ladder) float64 { return float64(l.levels(gmax)) + 1 }
 		per := 1.0
 		switch len(conf) {
+		case 0:
+			p.Subbands++
 		case 1:
 			if open == 1 {
 				per = n(conf[0])
 			}
+			p.Subbands += n(conf[0]) - 1
 		case 2:
 			// The outer loop runs over the axis with fewer levels.
 			if n(conf[0]) > n(conf[1]) {
 				vp.conf[0], vp.conf[1] = conf[1], conf[0]
 			}
 			per = n(vp.conf[0])
+			sub := pairs(vp.conf[0], vp.conf[1], gmax)
 			if open > 0 {
-				per = pairs(vp.conf[0], vp.conf[1], gmax) + 1
+				per = sub + 1
 			}
+			p.Subbands += sub
 		case 3:
+			p.Subbands = math.Inf(1)
 			build, bytes, pe := vp.choose(gmax, e)
 			p.Ops += build
 			p.Bytes += bytes

@@ -200,3 +200,36 @@ func TestLargeConductorsExact(t *testing.T) {
 		}
 	}
 }
+
+// TestPlanSubbands: the plan's subband count, which prices the per-subband
+// thermal sums before any counter exists, is at least the number the
+// counter lists (identity with Counter.Subbands; seeded random conductors
+// with one or two confined axes, or two confined and none open).
+func TestPlanSubbands(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 8))
+	for trial := 0; trial < 200; trial++ {
+		c := randomConductor(r)
+		conf := 0
+		for _, a := range c.Axes {
+			if a.BC != Open {
+				conf++
+			}
+		}
+		if conf == 3 || conf == 0 {
+			continue
+		}
+		top := 0.05 + r.Float64()
+		p := NewPlan(c, top, DefaultEvals)
+		k, err := p.Counter(context.Background())
+		if err != nil {
+			t.Fatal(err)
+		}
+		listed := 0.0
+		if err := k.Subbands(context.Background(), top, func(_, _ float64) { listed++ }); err != nil {
+			t.Fatal(err)
+		}
+		if p.Subbands < listed || p.Subbands > 2*listed+float64(2*len(c.Valleys)) {
+			t.Errorf("%+v to %g eV: plan says %g subbands, the counter lists %g", c, top, p.Subbands, listed)
+		}
+	}
+}

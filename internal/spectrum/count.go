@@ -444,23 +444,6 @@ func closedColumns(a, b, c ladder, g float64) float64 {
 	return s
 }
 
-// countAscending is count for a batch of energies of a three-confined-axis
-// valley, accumulated into out.
-func (v *valleyCounter) countAscending(gs, out []float64) {
-	a := v.conf[0]
-	for i, g0 := range gs {
-		if g0 < 0 {
-			continue
-		}
-		g := g0 * (1 + tieRel)
-		var s float64
-		for n, top := a.first(), a.top(g); n <= top; n++ {
-			s += a.weight(n) * v.list.count(g-a.q*float64(n)*float64(n))
-		}
-		out[i] += v.weight * s
-	}
-}
-
 // slope returns this valley's dN/dγ where an axis is open (0 otherwise).
 func (v *valleyCounter) slope(g float64) float64 {
 	if v.open.dim == 0 || g < 0 {
@@ -519,17 +502,13 @@ func (v *valleyCounter) wire(g0 float64, slope bool) (n, d float64) {
 				}
 			}
 		}
-		if slope {
-			for ; m <= topm; m++ {
-				if x := r0 - b.q*float64(m)*float64(m); x > 0 {
-					rt := math.Sqrt(x)
-					sn += rt
+		for ; m <= topm; m++ {
+			if x := r0 - b.q*float64(m)*float64(m); x > 0 {
+				rt := math.Sqrt(x)
+				sn += rt
+				if slope {
 					sd += 1 / rt
 				}
-			}
-		} else {
-			for ; m <= topm; m++ {
-				sn += math.Sqrt(max(r0-b.q*float64(m)*float64(m), 0))
 			}
 		}
 		bw := 1.0
@@ -546,64 +525,7 @@ func (v *valleyCounter) wire(g0 float64, slope bool) (n, d float64) {
 // included), for each energy (eV) into out. Energies above the cap the
 // Counter was built for panic.
 func (k *Counter) States(ctx context.Context, energiesEV, out []float64) error {
-	if k.ascendingColumns(energiesEV) {
-		return k.eachAscending(ctx, energiesEV, out)
-	}
 	return k.each(ctx, energiesEV, out, nil, func(v *valleyCounter, g float64) (float64, float64) { return v.count(g), 0 })
-}
-
-// ascendingColumns reports whether the galloping batch path applies.
-func (k *Counter) ascendingColumns(energiesEV []float64) bool {
-	if len(energiesEV) < 8 || len(k.valleys) == 0 {
-		return false
-	}
-	for _, v := range k.valleys {
-		if v.list == nil {
-			return false
-		}
-	}
-	for i := 1; i < len(energiesEV); i++ {
-		if energiesEV[i] < energiesEV[i-1] {
-			return false
-		}
-	}
-	return true
-}
-
-// eachAscending splits ascending energies into contiguous chunks, one
-// galloping walk per chunk and valley.
-func (k *Counter) eachAscending(ctx context.Context, energiesEV, out []float64) error {
-	if len(out) != len(energiesEV) {
-		panic("spectrum: output length differs from input")
-	}
-	gam := make([]float64, len(energiesEV))
-	for i, e := range energiesEV {
-		gam[i] = Gamma(e, k.c.AlphaPerEV)
-		if gam[i] > k.gammaMax {
-			panic("spectrum: energy above the counter's cap")
-		}
-		out[i] = 0
-	}
-	workers := runtime.GOMAXPROCS(0)
-	// The cost of an energy grows with it; chunks of equal cost would be
-	// better, equal counts of 4 per worker are close enough.
-	chunks := min(4*workers, len(gam))
-	size := (len(gam) + chunks - 1) / chunks
-	var g errgroup.Group
-	g.SetLimit(workers)
-	for lo := 0; lo < len(gam); lo += size {
-		lo, hi := lo, min(lo+size, len(gam))
-		g.Go(func() error {
-			if ctx.Err() != nil {
-				return ctx.Err()
-			}
-			for vi := range k.valleys {
-				k.valleys[vi].countAscending(gam[lo:hi], out[lo:hi])
-			}
-			return nil
-		})
-	}
-	return g.Wait()
 }
 
 // DensityOfStates writes the analytic D(E) = dN/dE in states per eV where at
@@ -623,12 +545,6 @@ func (k *Counter) DensityOfStates(ctx context.Context, energiesEV, out []float64
 // StatesAndDensity writes States into n and DensityOfStates into d in one
 // pass, which for a wire shares each subband's square root.
 func (k *Counter) StatesAndDensity(ctx context.Context, energiesEV, n, d []float64) error {
-	if k.ascendingColumns(energiesEV) {
-		if err := k.States(ctx, energiesEV, n); err != nil {
-			return err
-		}
-		return k.DensityOfStates(ctx, energiesEV, d)
-	}
 	err := k.each(ctx, energiesEV, n, d, func(v *valleyCounter, g float64) (float64, float64) {
 		if len(v.conf) == 2 && v.open.dim == 1 && g >= 0 {
 			a, b := v.wire(g, true)

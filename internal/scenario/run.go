@@ -416,14 +416,13 @@ type span struct {
 	ef      float64 // the highest E_F the integrals are centred on
 	solveHi float64 // with a density: E_F is looked for below this
 	curves  float64 // the top of the curves and point values (0 without)
-	w       float64 // the thermal window above E_F
 	reach   float64 // how far above a level its line shape reaches
 	kT      float64
 	along   int
 }
 
 func newSpan(s Scenario, conds map[string]spectrum.Conductor, ef float64, curves bool) span {
-	sp := span{ef: ef, w: thermal.WindowFor(relTol) * s.KTEV(), kT: s.KTEV(), along: s.Along,
+	sp := span{ef: ef, kT: s.KTEV(), along: s.Along,
 		reach: spectrum.Reach(s.Eta(), s.Shape)}
 	if s.HasDensity {
 		// The bulk E_F at the same density shifted by the scenario's
@@ -457,13 +456,10 @@ func (sp span) top(c spectrum.Conductor) float64 {
 }
 
 // thermal returns the top of the thermal window for a curve that starts at
-// edge: none above E_F when the occupation at the edge underflows
-// (thermal.Underflows), where the integrals are exactly zero.
+// edge (thermal.Integrator.Window), or E_F where the window is empty.
 func (sp span) thermal(edge float64) float64 {
-	if sp.ef < edge && (sp.kT == 0 || thermal.Underflows(edge, sp.ef, sp.kT)) {
-		return sp.ef
-	}
-	return math.Max(sp.ef, edge) + sp.w
+	_, hi, _, _ := thermal.Integrator{RelTol: relTol, Edge: edge, HasEdge: true}.Window(sp.ef, sp.kT)
+	return hi
 }
 
 // method says how a run counted: exact, or asymptotic because the cheapest
@@ -785,7 +781,8 @@ func bySubband(ctx context.Context, k *spectrum.Counter, ef, kT float64) (occ, s
 		return 0, 0, false, nil
 	}
 	lo := c.Edge()
-	top := math.Min(math.Max(ef, lo)+thermal.WindowFor(relTol)*kT, k.TopEV())
+	_, top, _, _ := thermal.Integrator{RelTol: relTol, Edge: lo, HasEdge: true}.Window(ef, kT)
+	top = math.Min(top, k.TopEV())
 	n := k.SubbandCount(top)
 	if n > maxSubbands {
 		return 0, 0, false, nil

@@ -2,6 +2,7 @@ package scenario
 
 import (
 	"context"
+	"math"
 	"testing"
 
 	"ringbox/internal/thermal"
@@ -34,7 +35,7 @@ func TestSubbandSumsMatchTheCurve(t *testing.T) {
 		// leaves out (e^(−30)) is far below the tolerance; the subband sums
 		// take every subband's tail in analytically and leave out the
 		// subbands above the window, to the requested accuracy relTol.
-		sp.w = 30 * s.KTEV()
+		sp.curves = math.Max(s.EFEV, conds["box"].Edge()) + 30*s.KTEV()
 		srcs, _, err := build(ctx, s, conds, sp)
 		if err != nil {
 			t.Fatal(err)

@@ -242,6 +242,24 @@ func (in Integrator) withDefaults() Integrator {
 	return in
 }
 
+// Window returns the energy range an average at (E_F, k_BT) reads:
+// E_F ± W·k_BT or, with an edge above E_F − W·k_BT, from the edge to
+// max(E_F, Edge) + W·k_BT (atEdge). empty reports that the occupation at
+// the edge underflows (Underflows), where the average is exactly zero and
+// nothing is read; lo = hi = E_F then.
+func (in Integrator) Window(efEV, kTEV float64) (lo, hi float64, atEdge, empty bool) {
+	in = in.withDefaults()
+	if in.HasEdge && (Underflows(in.Edge, efEV, kTEV) || (kTEV == 0 && in.Edge > efEV)) {
+		return efEV, efEV, true, true
+	}
+	width := in.WindowKT * kTEV
+	lo, hi = efEV-width, efEV+width
+	if in.HasEdge && lo < in.Edge {
+		lo, hi, atEdge = in.Edge, math.Max(efEV, in.Edge)+width, true
+	}
+	return lo, hi, atEdge, false
+}
+
 // collapsed reports whether the first cells of the window round to E_F.
 func (in Integrator) collapsed(efEV, kTEV float64) bool {
 	step := in.WindowKT * kTEV / initialCells
@@ -379,15 +397,12 @@ func (in Integrator) run2(ctx context.Context, c Curve, efEV, kTEV float64, w, w
 	n := 2 * initialCells
 	ws.nodes, ws.vals = slices.Grow(ws.nodes[:0], n+1)[:n+1], slices.Grow(ws.vals[:0], n+1)[:n+1]
 	nodes, vals := ws.nodes, ws.vals
-	width := in.WindowKT * kTEV
-	lo, hi := efEV-width, efEV+width
-	if in.HasEdge && Underflows(in.Edge, efEV, kTEV) {
+	lo, hi, atEdge, empty := in.Window(efEV, kTEV)
+	r.atEdge = atEdge
+	if empty {
 		// Zero in floating point, exactly: nothing to evaluate.
-		r.converged, r.atEdge = true, true
+		r.converged = true
 		return r, nil
-	}
-	if in.HasEdge && lo < in.Edge {
-		lo, hi, r.atEdge = in.Edge, math.Max(efEV, in.Edge)+width, true
 	}
 	if lo < efEV && efEV < hi {
 		// E_F a node, so no cell straddles the peak of −f′.

@@ -453,3 +453,29 @@ func TestOccupiedBoltzmannTail(t *testing.T) {
 		}
 	}
 }
+
+// TestWindow: the range an average reads (identity with the Integrator's
+// documentation): E_F ± W·k_BT, from the edge when it is inside, and
+// nothing once the occupation at the edge underflows (708 k_BT).
+func TestWindow(t *testing.T) {
+	const kT = 0.025
+	w := WindowFor(1e-6) * kT
+	for _, tt := range []struct {
+		edge, lo, hi  float64
+		atEdge, empty bool
+	}{
+		{-1, -w, w, false, false},
+		{0.1, 0.1, 0.1 + w, true, false},
+		{-w / 2, -w / 2, w, true, false},
+		{709 * kT, 0, 0, true, true},
+	} {
+		in := Integrator{RelTol: 1e-6, Edge: tt.edge, HasEdge: true}
+		lo, hi, atEdge, empty := in.Window(0, kT)
+		if math.Abs(lo-tt.lo) > 1e-15 || math.Abs(hi-tt.hi) > 1e-15 || atEdge != tt.atEdge || empty != tt.empty {
+			t.Errorf("edge %g: window (%g, %g) atEdge %v empty %v, want %+v", tt.edge, lo, hi, atEdge, empty, tt)
+		}
+	}
+	if _, _, _, empty := (Integrator{Edge: 0.1, HasEdge: true}).Window(0, 0); !empty {
+		t.Error("T = 0 below the edge reads something")
+	}
+}

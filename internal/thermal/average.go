@@ -139,13 +139,9 @@ func (in Integrator) Occupied(ctx context.Context, c Curve, efEV, kTEV float64) 
 	// ∫ c(−f′)dE = c(lo) + ∫_(lo,∞) f dc − ∫_(−∞,lo) (1−f) dc; the two
 	// outer pieces carry weights below e^(−W). From the edge, c(lo) is the
 	// jump at lo and carries f(lo).
-	tail := (1-w(r.lo))*math.Abs(r.cLo) + w(r.hi)*math.Abs(r.cHi)
-	if r.atEdge {
-		tail = w(r.hi) * math.Abs(r.cHi)
-	}
 	return Estimate{
 		Value:     r.base + r.sum,
-		ErrBound:  r.bound + tail,
+		ErrBound:  r.bound + r.tail(func(e float64) float64 { return 1 - w(e) }, w),
 		Evals:     r.evals,
 		Converged: r.converged,
 	}, nil
@@ -169,15 +165,13 @@ func (in Integrator) OccupiedAndSlope(ctx context.Context, c Curve, efEV, kTEV f
 	if err != nil {
 		return occ, slope, err
 	}
-	tail := (1-w(r.lo))*math.Abs(r.cLo) + w(r.hi)*math.Abs(r.cHi)
-	tail2 := k(r.lo)*math.Abs(r.cLo) + k(r.hi)*math.Abs(r.cHi)
 	base2 := 0.0
 	if r.atEdge {
-		tail, tail2 = w(r.hi)*math.Abs(r.cHi), k(r.hi)*math.Abs(r.cHi)
 		base2 = k(r.lo) * r.cLo
 	}
-	occ = Estimate{Value: r.base + r.sum, ErrBound: r.bound + tail, Evals: r.evals, Converged: r.converged}
-	bound2 := r.bound2 + tail2
+	occ = Estimate{Value: r.base + r.sum, ErrBound: r.bound + r.tail(func(e float64) float64 { return 1 - w(e) }, w),
+		Evals: r.evals, Converged: r.converged}
+	bound2 := r.bound2 + r.tail(k, k)
 	slope = Estimate{Value: base2 + r.sum2, ErrBound: bound2, Evals: r.evals,
 		Converged: bound2 <= in.RelTol*math.Abs(base2+r.sum2)}
 	return occ, slope, nil
@@ -201,11 +195,7 @@ func (in Integrator) Slope(ctx context.Context, c Curve, efEV, kTEV float64) (Es
 	if err != nil {
 		return Estimate{}, err
 	}
-	tail := w(r.lo)*math.Abs(r.cLo) + w(r.hi)*math.Abs(r.cHi)
-	if r.atEdge {
-		tail = w(r.hi) * math.Abs(r.cHi)
-	}
-	return Estimate{Value: r.base + r.sum, ErrBound: r.bound + tail, Evals: r.evals, Converged: r.converged}, nil
+	return Estimate{Value: r.base + r.sum, ErrBound: r.bound + r.tail(w, w), Evals: r.evals, Converged: r.converged}, nil
 }
 
 func checkArgs(efEV, kTEV float64) error {
@@ -380,6 +370,17 @@ type runResult struct {
 	converged  bool
 	// With a second weight: its Σ estimates and Σ bounds on the same cells.
 	sum2, bound2 float64
+}
+
+// tail estimates what a weight leaves outside the window: wBelow (the
+// part of the weight still missing below lo: 1 − f for Occupied, −f′ for
+// Slope) times |c(lo)|, nothing from an edge, and w(hi)·|c(hi)| above.
+func (r runResult) tail(wBelow, w func(float64) float64) float64 {
+	t := w(r.hi) * math.Abs(r.cHi)
+	if !r.atEdge {
+		t += wBelow(r.lo) * math.Abs(r.cLo)
+	}
+	return t
 }
 
 // run refines ∫_(lo,hi] w dc. offsetByCLo adds c(lo) to the value the
